@@ -264,14 +264,27 @@ impl Outline {
         self.loops.iter().filter(|l| loop_contains(l, p)).count() % 2 == 1
     }
 
-    /// Axis-aligned bounding box `(min, max)`.
+    /// Axis-aligned bounding box `(min, max)`, exact for arcs.
     pub fn bounding_box(&self) -> (Point, Point) {
         let mut lo = [f64::INFINITY; 2];
         let mut hi = [f64::NEG_INFINITY; 2];
-        for p in self.polylines(1e-3).iter().flatten() {
+        let mut add = |p: Point| {
             for k in 0..2 {
                 lo[k] = lo[k].min(p[k]);
                 hi[k] = hi[k].max(p[k]);
+            }
+        };
+        for s in self.loops.iter().flat_map(|l| &l.segments) {
+            add(s.start_point());
+            add(s.end_point());
+            if let Segment::Arc { center, radius, start, sweep } = *s {
+                // The axis extremes of the circle that the arc passes through.
+                for k in 0..4 {
+                    let a = k as f64 * std::f64::consts::FRAC_PI_2;
+                    if angle_in_arc(a, start, sweep) {
+                        add(polar(center, radius, a));
+                    }
+                }
             }
         }
         (lo, hi)
@@ -318,37 +331,68 @@ pub(crate) fn arc_pieces(sweep: f64, chord_fraction: f64) -> usize {
 }
 
 fn loop_contains(l: &Loop, p: Point) -> bool {
-    // Ray cast to +x over the exact segments.
+    // Ray cast to +x over the exact segments. Every piece is treated like a
+    // line with the half-open rule on y (a piece counts when exactly one of
+    // its ends is above p), so shared corners count once; arcs are cut into
+    // pieces that are monotone in y for this.
     let mut inside = false;
+    let mut crossing = |a: Point, b: Point, x_at: &dyn Fn() -> f64| {
+        if (a[1] > p[1]) != (b[1] > p[1]) && x_at() > p[0] {
+            inside = !inside;
+        }
+    };
     for s in &l.segments {
         match *s {
             Segment::Line { from, to } => {
-                if (from[1] > p[1]) != (to[1] > p[1]) {
-                    let x = from[0] + (p[1] - from[1]) * (to[0] - from[0]) / (to[1] - from[1]);
-                    if x > p[0] {
-                        inside = !inside;
-                    }
-                }
+                crossing(from, to, &|| from[0] + (p[1] - from[1]) * (to[0] - from[0]) / (to[1] - from[1]));
             }
             Segment::Arc { center, radius, start, sweep } => {
-                let dy = p[1] - center[1];
-                if dy.abs() >= radius {
-                    continue;
-                }
-                let dx = (radius * radius - dy * dy).sqrt();
-                for x in [center[0] - dx, center[0] + dx] {
-                    if x <= p[0] {
-                        continue;
-                    }
-                    let ang = dy.atan2(x - center[0]);
-                    if angle_in_arc(ang, start, sweep) {
-                        inside = !inside;
-                    }
+                for (a0, a1) in y_monotone_pieces(start, sweep) {
+                    let (pa, pb) = (polar(center, radius, a0), polar(center, radius, a1));
+                    let right_half = (0.5 * (a0 + a1)).cos() >= 0.0;
+                    crossing(pa, pb, &|| {
+                        let dy = p[1] - center[1];
+                        let dx = (radius * radius - dy * dy).max(0.0).sqrt();
+                        if right_half {
+                            center[0] + dx
+                        } else {
+                            center[0] - dx
+                        }
+                    });
                 }
             }
         }
     }
     inside
+}
+
+/// The arc from `start` sweeping `sweep` cut at the angles where y is
+/// extreme (π/2 + kπ), as `(from, to)` angle pairs in sweep order.
+pub(crate) fn y_monotone_pieces(start: f64, sweep: f64) -> Vec<(f64, f64)> {
+    use std::f64::consts::{FRAC_PI_2, PI};
+    let end = start + sweep;
+    let (lo, hi) = if sweep >= 0.0 { (start, end) } else { (end, start) };
+    let mut cuts = vec![lo];
+    let mut k = ((lo - FRAC_PI_2) / PI).floor() + 1.0;
+    loop {
+        let a = FRAC_PI_2 + k * PI;
+        if a >= hi {
+            break;
+        }
+        if a > lo {
+            cuts.push(a);
+        }
+        k += 1.0;
+    }
+    cuts.push(hi);
+    let mut pieces: Vec<(f64, f64)> = cuts.windows(2).map(|w| (w[0], w[1])).collect();
+    if sweep < 0.0 {
+        pieces.reverse();
+        for piece in &mut pieces {
+            *piece = (piece.1, piece.0);
+        }
+    }
+    pieces
 }
 
 /// Whether angle `a` lies on the arc from `start` sweeping `sweep` (half-open

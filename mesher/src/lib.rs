@@ -17,10 +17,15 @@
 #![deny(missing_docs)]
 #![forbid(unsafe_code)]
 
+mod domain;
 mod geometry;
 mod mesh;
+mod refine;
+mod sizefield;
+mod spatial;
 mod triangulate;
+mod validate;
 
 pub use geometry::{GeometryError, Loop, Outline, Point, Segment};
 pub use mesh::{BoundaryEdge, EdgeTopology, Mesh, MeshError, QualityStats, RefinementReport};
-pub use triangulate::{mesh, MeshInput, ShapeInput};
+pub use triangulate::{mesh, mesh_disc_with_fixed_rim, MeshInput, ShapeInput};

@@ -76,6 +76,14 @@ pub enum MeshError {
     /// An outline is not a valid region.
     #[error(transparent)]
     Geometry(#[from] crate::geometry::GeometryError),
+    /// The outline of one shape is not a valid region.
+    #[error("shape {shape}: {source}")]
+    ShapeGeometry {
+        /// Index of the shape in [`crate::MeshInput::shapes`].
+        shape: usize,
+        /// What is wrong with its outline.
+        source: crate::geometry::GeometryError,
+    },
     /// A size or quality parameter is out of range.
     #[error("mesh parameter `{name}` = {value} is out of range: {reason}")]
     Parameter {

@@ -1,8 +1,26 @@
 //! Constrained Delaunay triangulation of layered shapes and quality
 //! refinement under a graded size field.
+//!
+//! The pipeline: every loop of the outer outline and of every shape becomes
+//! a closed polyline (arcs cut by chord error and by the loop's own size);
+//! a background triangulation of those polylines (crossings split) carries
+//! the graded size field ([`crate::sizefield`]); every input edge is cut to
+//! the local size; all of them go into one spade constrained Delaunay
+//! triangulation, which is refined to the minimum angle and the size field
+//! ([`crate::refine`]); finally every triangle takes the region of the last
+//! shape covering it, and triangles outside the outer outline are dropped.
 
-use crate::geometry::{GeometryError, Outline};
-use crate::mesh::{Mesh, MeshError};
+use std::time::Instant;
+
+use spade::handles::FixedVertexHandle;
+use spade::{Point2, Triangulation};
+
+use crate::domain::{Domain, PolyLoop, SegInfo, OUTER_OWNER, OUTSIDE};
+use crate::geometry::{GeometryError, Outline, Point};
+use crate::mesh::{BoundaryEdge, Mesh, MeshError, RefinementReport};
+use crate::refine::{MeshCdt, MeshVertex, Refiner, NONE};
+use crate::sizefield::{label_components, Pslg, SizeField};
+use crate::spatial::{point_segment_distance, SegmentGrid};
 
 /// One layered shape: its outline and the largest element edge inside it.
 #[derive(Clone, Debug, PartialEq)]
@@ -33,15 +51,378 @@ pub struct MeshInput {
     pub max_triangles: usize,
 }
 
+impl MeshInput {
+    /// An input with no shapes and the default targets: minimum angle 25°,
+    /// growth 1.3, chord sagitta 0.2 % of the radius, at most 5 million
+    /// triangles.
+    pub fn new(outer: Outline, max_size: f64) -> MeshInput {
+        MeshInput {
+            outer,
+            shapes: Vec::new(),
+            max_size,
+            min_angle_deg: 25.0,
+            growth: 1.3,
+            chord_fraction: 2e-3,
+            max_triangles: 5_000_000,
+        }
+    }
+}
+
+fn parameter(name: &'static str, value: f64, reason: &'static str) -> MeshError {
+    MeshError::Parameter { name, value, reason }
+}
+
+fn check_size(name: &'static str, v: f64) -> Result<(), MeshError> {
+    if v.is_finite() && v > 0.0 {
+        Ok(())
+    } else {
+        Err(parameter(name, v, "must be a positive finite length"))
+    }
+}
+
+fn check_quality(growth: f64, min_angle_deg: f64) -> Result<(), MeshError> {
+    if !(growth.is_finite() && growth > 1.0) {
+        return Err(parameter("growth", growth, "must be a finite ratio above 1"));
+    }
+    if !(min_angle_deg > 0.0 && min_angle_deg <= 34.0) {
+        return Err(parameter("min_angle_deg", min_angle_deg, "must be in (0, 34] degrees"));
+    }
+    Ok(())
+}
+
 /// Mesh the layered shapes.
+///
+/// Every triangle's region is the index of the last shape whose outline
+/// covers it, or [`Mesh::OUTER_REGION`]. Triangles reach the minimum angle
+/// except next to input corners sharper than it (listed in
+/// [`RefinementReport::small_input_angles`]); every edge inside a shape is at
+/// most its `mesh_size` (and at most `max_size` anywhere), sizes grow by at
+/// most `growth − 1` per unit of distance, and thin gaps and shells get about
+/// three elements across.
 pub fn mesh(input: &MeshInput) -> Result<Mesh, MeshError> {
-    let _ = input;
-    Err(MeshError::Triangulation("not built yet".into()))
+    let start = Instant::now();
+    check_size("max_size", input.max_size)?;
+    for s in &input.shapes {
+        check_size("shapes[].mesh_size", s.mesh_size)?;
+    }
+    check_quality(input.growth, input.min_angle_deg)?;
+    if !(input.chord_fraction > 0.0 && input.chord_fraction <= 0.5) {
+        return Err(parameter("chord_fraction", input.chord_fraction, "must be in (0, 0.5]"));
+    }
+    if input.max_triangles == 0 {
+        return Err(parameter("max_triangles", 0.0, "must be at least 1"));
+    }
+    input.outer.validate()?;
+    for (i, s) in input.shapes.iter().enumerate() {
+        s.outline.validate().map_err(|source| MeshError::ShapeGeometry { shape: i, source })?;
+    }
+    // A cheap guard before any allocation that grows with the answer:
+    // equilateral triangles of the largest allowed size already need this.
+    let limit = input.max_triangles as f64;
+    let mut rough = input.outer.area() * 2.31 / (input.max_size * input.max_size);
+    let mut boundary_points = perimeter(&input.outer) / input.max_size;
+    for s in &input.shapes {
+        let size = s.mesh_size.min(input.max_size);
+        rough = rough.max(s.outline.area() * 2.31 / (size * size));
+        boundary_points += perimeter(&s.outline) / size;
+    }
+    let rough = rough.max(boundary_points);
+    if !(rough <= limit) {
+        return Err(MeshError::TooLarge { estimated_triangles: rough, limit });
+    }
+    let shapes: Vec<(&Outline, f64)> = input.shapes.iter().map(|s| (&s.outline, s.mesh_size)).collect();
+    let domain = Domain::from_outlines(&input.outer, &shapes, input.max_size, input.growth, input.chord_fraction);
+    run(&domain, input.min_angle_deg, input.max_triangles, start)
+}
+
+fn perimeter(o: &Outline) -> f64 {
+    o.loops.iter().flat_map(|l| &l.segments).map(|s| s.length()).sum()
+}
+
+/// Mesh a disc whose boundary nodes are exactly `rim_points` (on the circle
+/// of `center` and `radius`, counter-clockwise, never split), grading
+/// inwards from the rim spacing to `max_size`.
+///
+/// Boundary edge `i` of the result joins `rim_points[i]` and
+/// `rim_points[i + 1]` (wrapping) and carries `segment: i`; the region of
+/// every triangle is [`Mesh::OUTER_REGION`]. Triangles touching the rim may
+/// stay below `min_angle_deg` when the rim spacing is very uneven (then
+/// [`RefinementReport::complete`] is false).
+pub fn mesh_disc_with_fixed_rim(
+    center: Point,
+    radius: f64,
+    rim_points: &[Point],
+    growth: f64,
+    max_size: f64,
+    min_angle_deg: f64,
+) -> Result<Mesh, MeshError> {
+    let start = Instant::now();
+    check_size("radius", radius)?;
+    check_size("max_size", max_size)?;
+    check_quality(growth, min_angle_deg)?;
+    if !(center[0].is_finite() && center[1].is_finite()) {
+        return Err(GeometryError::NotFinite.into());
+    }
+    let n = rim_points.len();
+    if n < 3 {
+        return Err(GeometryError::TooFewPoints(n).into());
+    }
+    for p in rim_points {
+        if !(p[0].is_finite() && p[1].is_finite()) {
+            return Err(GeometryError::NotFinite.into());
+        }
+        let r = (p[0] - center[0]).hypot(p[1] - center[1]);
+        if (r - radius).abs() > 1e-6 * radius {
+            return Err(GeometryError::BadRadius(format!(
+                "rim point ({}, {}) is at distance {r} from the centre, not on the radius {radius}",
+                p[0], p[1]
+            ))
+            .into());
+        }
+    }
+    let outline = Outline::polygon(rim_points)?;
+    if outline.loops[0].signed_area() <= 0.0 {
+        return Err(GeometryError::BadRadius("rim points must run counter-clockwise".into()).into());
+    }
+    let chord = |i: usize| {
+        let (a, b) = (rim_points[i % n], rim_points[(i + 1) % n]);
+        (a[0] - b[0]).hypot(a[1] - b[1])
+    };
+    let caps: Vec<f64> = (0..n).map(|i| 0.5 * (chord(i) + chord(i + n - 1))).collect();
+    let segs = (0..n as u32)
+        .map(|i| SegInfo { local: i, prev: (i + n as u32 - 1) % n as u32, next: (i + 1) % n as u32 })
+        .collect();
+    let domain = Domain {
+        loops: vec![PolyLoop::new(rim_points.to_vec(), (0..n as u32).collect(), OUTER_OWNER, max_size)],
+        segs,
+        shape_sizes: Vec::new(),
+        max_size,
+        growth,
+        vertex_caps: Some(vec![caps]),
+        fixed_boundary: true,
+    };
+    // Rough guard on the count, as in `mesh`.
+    let area = std::f64::consts::PI * radius * radius;
+    let smallest = (0..n).map(chord).fold(f64::INFINITY, f64::min);
+    let rough = area * 2.31 / (max_size * max_size);
+    if !(rough <= 5.0e7) || !(smallest > 0.0) {
+        return Err(MeshError::TooLarge { estimated_triangles: rough, limit: 5.0e7 });
+    }
+    run(&domain, min_angle_deg, 50_000_000, start)
+}
+
+/// Cut one PSLG edge `a -> b` so that each piece is about the local size.
+fn split_points(field: &SizeField, a: Point, b: Point, hint: u32) -> Vec<Point> {
+    let len = (b[0] - a[0]).hypot(b[1] - a[1]);
+    if !(len > 0.0) {
+        return Vec::new();
+    }
+    let at = |s: f64| [a[0] + (b[0] - a[0]) * s / len, a[1] + (b[1] - a[1]) * s / len];
+    // March by the local size, then spread a whole number of pieces evenly
+    // over the marched step positions.
+    let mut marks = vec![0.0f64];
+    let mut hint = hint;
+    loop {
+        let s = *marks.last().unwrap_or(&0.0);
+        let (h, next) = field.size_at(at(s.min(len)), hint);
+        hint = next;
+        let step = h.max(len * 1e-7);
+        marks.push(s + step);
+        if s + step >= len || marks.len() > 10_000_000 {
+            break;
+        }
+    }
+    let m = marks.len() - 1;
+    let frac = (len - marks[m - 1]) / (marks[m] - marks[m - 1]);
+    let steps = (m - 1) as f64 + frac;
+    let pieces = (steps.round() as usize).max(1);
+    (1..pieces)
+        .map(|k| {
+            let u = k as f64 * steps / pieces as f64;
+            let j = (u.floor() as usize).min(m - 1);
+            let s = marks[j] + (u - j as f64) * (marks[j + 1] - marks[j]);
+            at(s.min(len))
+        })
+        .collect()
+}
+
+fn run(domain: &Domain, min_angle_deg: f64, max_triangles: usize, start: Instant) -> Result<Mesh, MeshError> {
+    let (field, pslg) = SizeField::build(domain, min_angle_deg)?;
+    let estimate = field.estimate_triangles();
+    let limit = max_triangles as f64;
+    if !(estimate <= limit) {
+        return Err(MeshError::TooLarge { estimated_triangles: estimate, limit });
+    }
+    let dbg = std::env::var_os("FLUXWRIGHT_MESH_TIMING").is_some();
+    if dbg { eprintln!("field {:.3}s", start.elapsed().as_secs_f64()); }
+    let (mut cdt, scale) = build_cdt(domain, &field, &pslg)?;
+    if dbg { eprintln!("cdt {:.3}s ({} vertices)", start.elapsed().as_secs_f64(), cdt.num_vertices()); }
+    let max_vertices = cdt.num_vertices() + max_triangles.max(16);
+    let mut refiner =
+        Refiner::new(&mut cdt, &field, &pslg, min_angle_deg, 1e-10 * scale, domain.fixed_boundary, max_vertices);
+    refiner.seed();
+    let outcome = refiner.run();
+    if outcome.broken {
+        return Err(MeshError::Triangulation(
+            "a constraint edge could not be restored after splitting (near-degenerate input)".into(),
+        ));
+    }
+    if dbg { eprintln!("refine {:.3}s", start.elapsed().as_secs_f64()); }
+    let mut mesh = extract(domain, &cdt)?;
+    if dbg { eprintln!("extract {:.3}s", start.elapsed().as_secs_f64()); }
+    mesh.report = RefinementReport {
+        complete: outcome.met && pslg.small_angles.is_empty() && outcome.skipped_small_angle == 0,
+        small_input_angles: pslg.small_angles.clone(),
+        seconds: start.elapsed().as_secs_f64(),
+    };
+    Ok(mesh)
+}
+
+/// Insert the cut input edges into one constrained triangulation.
+fn build_cdt(domain: &Domain, field: &SizeField, pslg: &Pslg) -> Result<(MeshCdt, f64), MeshError> {
+    let mut cdt = MeshCdt::new();
+    let mut handle_of: Vec<Option<FixedVertexHandle>> = vec![None; pslg.points.len()];
+    let mut last: Option<FixedVertexHandle> = None;
+    let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+    for p in &pslg.points {
+        for k in 0..2 {
+            lo[k] = lo[k].min(p[k]);
+            hi[k] = hi[k].max(p[k]);
+        }
+    }
+    let scale = (hi[0] - lo[0]).hypot(hi[1] - lo[1]);
+    let mut insert = |cdt: &mut MeshCdt, v: MeshVertex| -> Result<FixedVertexHandle, MeshError> {
+        let r = match last {
+            Some(h) => cdt.insert_with_hint(v, h),
+            None => cdt.insert(v),
+        }
+        .map_err(|e| MeshError::Triangulation(format!("{e:?}")))?;
+        last = Some(r);
+        Ok(r)
+    };
+    let mut chains: Vec<Vec<FixedVertexHandle>> = Vec::with_capacity(pslg.edges.len());
+    for &[a, b] in &pslg.edges {
+        let mut chain = Vec::new();
+        for (i, end) in [a, b].into_iter().enumerate() {
+            let e = end as usize;
+            let h = match handle_of[e] {
+                Some(h) => h,
+                None => {
+                    let (size, bg) = field.size_at(pslg.points[e], pslg.bg[e]);
+                    let v = MeshVertex { pos: Point2::new(pslg.points[e][0], pslg.points[e][1]), h: size, bg, pv: end, ends: [NONE; 2] };
+                    let h = insert(&mut cdt, v)?;
+                    handle_of[e] = Some(h);
+                    h
+                }
+            };
+            if i == 0 {
+                chain.push(h);
+                if !domain.fixed_boundary {
+                    let (pa, pb) = (pslg.points[a as usize], pslg.points[b as usize]);
+                    for p in split_points(field, pa, pb, pslg.bg[a as usize]) {
+                        let (size, bg) = field.size_at(p, pslg.bg[a as usize]);
+                        let v = MeshVertex { pos: Point2::new(p[0], p[1]), h: size, bg, pv: NONE, ends: [a, b] };
+                        chain.push(insert(&mut cdt, v)?);
+                    }
+                }
+            } else {
+                chain.push(h);
+            }
+        }
+        chains.push(chain);
+    }
+    for chain in &chains {
+        for w in chain.windows(2) {
+            if w[0] == w[1] {
+                continue;
+            }
+            if cdt.try_add_constraint(w[0], w[1]).is_empty() {
+                cdt.add_constraint_and_split(w[0], w[1], |p| MeshVertex {
+                    pos: p,
+                    h: field.size_at([p.x, p.y], 0).0,
+                    bg: 0,
+                    pv: NONE,
+                    ends: [NONE; 2],
+                });
+            }
+        }
+    }
+    Ok((cdt, scale))
+}
+
+/// Regions, dropped outside triangles, compact numbering and tagged outer
+/// edges.
+fn extract(domain: &Domain, cdt: &MeshCdt) -> Result<Mesh, MeshError> {
+    let labels = label_components(cdt, |p| domain.classify(p));
+    let mut node_of = vec![u32::MAX; cdt.num_vertices()];
+    let mut mesh = Mesh::default();
+    let kept = cdt.inner_faces().filter(|f| labels[f.fix().index()] != OUTSIDE).count();
+    mesh.triangles.reserve(kept);
+    mesh.regions.reserve(kept);
+    mesh.nodes.reserve(cdt.num_vertices());
+    // Outer-outline edges for tagging the boundary.
+    let mut outer_edges = Vec::new();
+    let mut outer_seg = Vec::new();
+    for l in domain.loops.iter().filter(|l| l.owner == OUTER_OWNER) {
+        let n = l.points.len();
+        for i in 0..n {
+            outer_edges.push([l.points[i], l.points[(i + 1) % n]]);
+            outer_seg.push(domain.segs[l.seg[i] as usize].local);
+        }
+    }
+    let grid = SegmentGrid::new(&outer_edges);
+    for f in cdt.inner_faces() {
+        let label = labels[f.fix().index()];
+        if label == OUTSIDE {
+            continue;
+        }
+        let vs = f.vertices();
+        let mut tri = [0u32; 3];
+        for k in 0..3 {
+            let i = vs[k].fix().index();
+            if node_of[i] == u32::MAX {
+                node_of[i] = mesh.nodes.len() as u32;
+                let p = vs[k].position();
+                mesh.nodes.push([p.x, p.y]);
+            }
+            tri[k] = node_of[i];
+        }
+        mesh.triangles.push(tri);
+        mesh.regions.push(label);
+        for e in f.adjacent_edges() {
+            let outside = match e.rev().face().as_inner() {
+                None => true,
+                Some(g) => labels[g.fix().index()] == OUTSIDE,
+            };
+            if !outside {
+                continue;
+            }
+            let [a, b] = e.positions();
+            let mid = [0.5 * (a.x + b.x), 0.5 * (a.y + b.y)];
+            let mut best = (f64::INFINITY, u32::MAX);
+            let pad = 1e-9 * (a.x - b.x).hypot(a.y - b.y);
+            grid.query([mid[0] - pad, mid[1] - pad], [mid[0] + pad, mid[1] + pad], |j| {
+                let d = point_segment_distance(mid, outer_edges[j][0], outer_edges[j][1]).0;
+                if d < best.0 {
+                    best = (d, outer_seg[j]);
+                }
+            });
+            if best.1 == u32::MAX {
+                return Err(MeshError::Invariant(format!(
+                    "mesh edge at ({:.6}, {:.6}) bounds the domain but lies on no outer segment",
+                    mid[0], mid[1]
+                )));
+            }
+            let ia = node_of[e.from().fix().index()];
+            let ib = e.to().fix().index();
+            // `to` may not be numbered yet only if it is not in this face,
+            // which cannot happen: both ends are corners of `f`.
+            mesh.boundary.push(BoundaryEdge { nodes: [ia, node_of[ib]], segment: best.1 });
+        }
+    }
+    Ok(mesh)
 }
 
 pub(crate) fn validate_outline(outline: &Outline) -> Result<(), GeometryError> {
-    if outline.loops.is_empty() || outline.area() <= 0.0 {
-        return Err(GeometryError::NoArea);
-    }
-    Ok(())
+    crate::validate::validate_outline(outline)
 }

@@ -5,3 +5,13 @@
 //! text and returns typed results.
 #![deny(missing_docs)]
 #![forbid(unsafe_code)]
+
+pub mod model;
+pub mod assembly;
+pub mod boundary;
+pub mod fe;
+pub mod field;
+pub mod linear;
+pub mod material;
+pub mod nonlinear;
+pub mod problem;

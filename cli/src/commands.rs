@@ -1,0 +1,261 @@
+//! One function a subcommand. This is the only module that reads model files
+//! and writes results; it holds no physics.
+
+use crate::args::{Cli, Command};
+use crate::output::Staging;
+use crate::plot::{self, MeshPicture, RegionStyle};
+use crate::vtu;
+use crate::Failure;
+use anyhow::{Context, Result};
+use fluxwright_mesher::Mesh;
+use fluxwright_solver::model::{Model, ModelSource};
+use serde::Serialize;
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+use std::time::Instant;
+
+/// The built-in demo model (an invented scenario).
+pub const DEMO_MODEL: &str = include_str!("demo/door_holder.toml");
+const DEMO_NAME: &str = "demo/door_holder.toml (built in)";
+
+/// Run a parsed command line; returns the exit code.
+pub fn run(cli: Cli) -> Result<u8> {
+    match cli.command {
+        Command::Check { model } => check(&model),
+        Command::Mesh { model, out } => {
+            let model = load_model(&model)?;
+            mesh(&model, &out)
+        }
+        Command::Demo { out, save_model } => demo(&out, save_model.as_deref()),
+    }
+}
+
+/// Read and validate a model file; every error names the file.
+fn load_model(path: &Path) -> Result<Model> {
+    let name = path.display().to_string();
+    let text = std::fs::read_to_string(path)
+        .map_err(|e| Failure::input(format!("{name}: cannot read the model file: {e}")))?;
+    let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
+    let loader = move |relative: &str| -> Result<String, String> {
+        let p: PathBuf = dir.join(relative);
+        std::fs::read_to_string(&p).map_err(|e| format!("cannot read {}: {e}", p.display()))
+    };
+    parse_model(&text, &name, &loader)
+}
+
+fn parse_model(text: &str, name: &str, loader: &dyn fluxwright_solver::model::FileLoader) -> Result<Model> {
+    match Model::from_toml_str_with_files(text, &ModelSource::new(name), loader) {
+        Ok(model) => {
+            for w in &model.warnings {
+                eprintln!("warning: {w}");
+            }
+            Ok(model)
+        }
+        Err(errors) => {
+            let n = errors.errors.len();
+            let mut message = errors.to_string();
+            message.push_str(&format!(
+                "\n{name}: {n} error{} found; nothing was written",
+                if n == 1 { "" } else { "s" }
+            ));
+            Err(Failure::input(message).into())
+        }
+    }
+}
+
+fn check(path: &Path) -> Result<u8> {
+    let model = load_model(path)?;
+    print_summary(&model);
+    println!("\n{}: the model is valid", path.display());
+    Ok(0)
+}
+
+fn print_summary(model: &Model) {
+    let s = model.summary();
+    let unit = s.length_unit;
+    println!("{}", s.title);
+    match s.depth_m {
+        Some(d) => println!("  {} , depth {} m, lengths in {unit}, element order {}", s.symmetry, d, s.element_order),
+        None => println!("  {} (full turn), lengths in {unit}, element order {}", s.symmetry, s.element_order),
+    }
+    println!("  outer: {}", s.outer);
+    let mut rows = vec![["shape".to_string(), "outline".into(), "material".into(), "source".into(), format!("area ({unit}²)")]];
+    for r in &s.shapes {
+        rows.push([r.name.clone(), r.outline.into(), r.material.clone(), r.source.clone(), format!("{:.4}", r.area)]);
+    }
+    println!();
+    print_table(&rows);
+    let mut rows = vec![["material".to_string(), "law".into(), "stacking".into(), "used by".into()]];
+    for r in &s.materials {
+        rows.push([r.name.clone(), r.kind.clone(), format!("{}", r.stacking_factor), r.shapes.join(", ")]);
+    }
+    println!();
+    print_table(&rows);
+    if !s.windings.is_empty() {
+        let mut rows = vec![["winding".to_string(), "turns".into(), "current (A)".into(), "shapes".into()]];
+        for r in &s.windings {
+            rows.push([r.name.clone(), format!("{}", r.turns), format!("{}", r.current_a), r.shapes.join(", ")]);
+        }
+        println!();
+        print_table(&rows);
+    }
+}
+
+fn print_table<const N: usize>(rows: &[[String; N]]) {
+    let mut widths = [0usize; N];
+    for row in rows {
+        for (w, cell) in widths.iter_mut().zip(row) {
+            *w = (*w).max(cell.chars().count());
+        }
+    }
+    for (i, row) in rows.iter().enumerate() {
+        let line: Vec<String> = row
+            .iter()
+            .zip(widths)
+            .map(|(cell, w)| format!("{cell}{}", " ".repeat(w - cell.chars().count())))
+            .collect();
+        println!("  {}", line.join("  ").trim_end());
+        if i == 0 {
+            let rule: Vec<String> = widths.iter().map(|&w| "-".repeat(w)).collect();
+            println!("  {}", rule.join("  "));
+        }
+    }
+}
+
+/// mesh.json, per model-format.md.
+#[derive(Serialize)]
+struct MeshReport {
+    format: &'static str,
+    nodes: usize,
+    triangles: usize,
+    min_angle_deg: f64,
+    seconds: f64,
+    shapes: BTreeMap<String, ShapeMeshReport>,
+}
+
+#[derive(Serialize)]
+struct ShapeMeshReport {
+    triangles: usize,
+    area: f64,
+}
+
+fn build_mesh(model: &Model) -> Result<(Mesh, f64)> {
+    let start = Instant::now();
+    let mesh = fluxwright_mesher::mesh(&model.mesh_input())
+        .map_err(|e| Failure::input(format!("{}: meshing failed: {e}", model.source)))?;
+    mesh.check()
+        .with_context(|| format!("{}: the mesh failed its own checks (a bug; please report it)", model.source))?;
+    Ok((mesh, start.elapsed().as_secs_f64()))
+}
+
+fn region_name(model: &Model, region: u32) -> String {
+    if region == Mesh::OUTER_REGION {
+        "outer".to_string()
+    } else {
+        model.shapes[region as usize].name.clone()
+    }
+}
+
+fn mesh(model: &Model, out: &Path) -> Result<u8> {
+    let (mesh, seconds) = build_mesh(model)?;
+    let mut staging = Staging::new(out)?;
+    write_mesh_files(model, &mesh, seconds, &mut staging)?;
+    staging.commit()?;
+    let q = mesh.quality();
+    println!(
+        "{}: {} nodes, {} triangles, smallest angle {:.1}°, {:.2} s",
+        model.source,
+        mesh.nodes.len(),
+        mesh.triangles.len(),
+        q.min_angle_deg,
+        seconds
+    );
+    for p in &mesh.report.small_input_angles {
+        println!("  note: an input corner at ({:.4}, {:.4}) is sharper than min_angle; its triangles keep that angle", p[0], p[1]);
+    }
+    if !mesh.report.complete {
+        println!("  note: refinement stopped before every triangle met the targets");
+    }
+    println!("wrote {}", out.display());
+    Ok(0)
+}
+
+fn write_mesh_files(model: &Model, mesh: &Mesh, seconds: f64, staging: &mut Staging) -> Result<()> {
+    let mut shapes: BTreeMap<String, ShapeMeshReport> = BTreeMap::new();
+    let mut counts: BTreeMap<u32, usize> = BTreeMap::new();
+    for &r in &mesh.regions {
+        *counts.entry(r).or_default() += 1;
+    }
+    for (region, area) in mesh.region_areas() {
+        shapes.insert(
+            region_name(model, region),
+            ShapeMeshReport { triangles: counts.get(&region).copied().unwrap_or(0), area },
+        );
+    }
+    // Shapes covered entirely by later ones still appear, with nothing left.
+    for s in &model.shapes {
+        shapes.entry(s.name.clone()).or_insert(ShapeMeshReport { triangles: 0, area: 0.0 });
+    }
+    let report = MeshReport {
+        format: "fluxwright-mesh/1",
+        nodes: mesh.nodes.len(),
+        triangles: mesh.triangles.len(),
+        min_angle_deg: mesh.quality().min_angle_deg,
+        seconds,
+        shapes,
+    };
+
+    let shape_index: Vec<i32> =
+        mesh.regions.iter().map(|&r| if r == Mesh::OUTER_REGION { -1 } else { r as i32 }).collect();
+    let min_angle: Vec<f64> = (0..mesh.triangles.len())
+        .map(|t| mesh.triangle_angles(t).into_iter().fold(f64::INFINITY, f64::min).to_degrees())
+        .collect();
+    let doc = vtu::render(
+        &mesh.nodes,
+        vtu::Cells::Triangles(&mesh.triangles),
+        &[],
+        &[vtu::Array::Int("shape", shape_index), vtu::Array::Scalar("min_angle_deg", min_angle)],
+    );
+    staging.write("mesh.vtu", doc.as_bytes())?;
+
+    // Regions for the picture: the outer region first, then each shape.
+    let mut styles = vec![RegionStyle { label: "outer (air)".into(), is_air: true }];
+    for s in &model.shapes {
+        let material = &model.materials[s.material];
+        styles.push(RegionStyle {
+            label: format!("{} ({})", s.name, material.name),
+            is_air: s.material == 0,
+        });
+    }
+    let region_of: Vec<usize> =
+        mesh.regions.iter().map(|&r| if r == Mesh::OUTER_REGION { 0 } else { r as usize + 1 }).collect();
+    let title = format!("{}: mesh", model.title);
+    let png = staging.path("mesh.png")?;
+    plot::mesh_png(
+        &png,
+        &MeshPicture {
+            title: &title,
+            unit: model.length_unit.as_str(),
+            nodes: &mesh.nodes,
+            triangles: &mesh.triangles,
+            region_of: &region_of,
+            regions: &styles,
+        },
+    )?;
+    staging.write("mesh.json", serde_json::to_string_pretty(&report)?.as_bytes())?;
+    Ok(())
+}
+
+fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
+    let model = parse_model(DEMO_MODEL, DEMO_NAME, &fluxwright_solver::model::NoFiles)?;
+    println!("fluxwright demo: {}", model.title);
+    println!("  An invented scenario: a fire door's hold-open magnet. A 600-turn coil at 0.4 A");
+    println!("  magnetises an E-shaped steel core; a steel armature plate sits 0.3 mm away.\n");
+    if let Some(path) = save_model {
+        std::fs::write(path, DEMO_MODEL).with_context(|| format!("cannot write {}", path.display()))?;
+        println!("  model saved to {} (edit it, then: fluxwright mesh {} -o OUT)\n", path.display(), path.display());
+    }
+    print_summary(&model);
+    println!();
+    mesh(&model, out)
+}

@@ -1,0 +1,256 @@
+//! The input geometry as closed polylines: arcs cut by chord error and by
+//! each loop's own size, region classification of points, and the local
+//! feature size at every polyline vertex.
+
+use crate::geometry::{arc_pieces, polar, Outline, Point, Segment};
+use crate::mesh::Mesh;
+use crate::spatial::{point_segment_distance, SegmentGrid};
+
+/// Label of a point outside the outer outline.
+pub(crate) const OUTSIDE: u32 = u32::MAX - 1;
+
+/// Owner value of a loop of the outer outline.
+pub(crate) const OUTER_OWNER: u32 = u32::MAX;
+
+/// Elements across the narrowest gap or shell: the size at a vertex is at
+/// most its local feature size divided by this (common practice, no source:
+/// two to four elements across a thin feature).
+pub(crate) const ELEMENTS_ACROSS_FEATURE: f64 = 3.0;
+
+/// One closed polyline: `points[i] -> points[i + 1]` (wrapping) is edge `i`,
+/// lying on input segment `seg[i]`.
+#[derive(Clone, Debug)]
+pub(crate) struct PolyLoop {
+    pub points: Vec<Point>,
+    pub seg: Vec<u32>,
+    /// Shape index, or [`OUTER_OWNER`].
+    pub owner: u32,
+    /// The largest element edge of the owner.
+    pub own_size: f64,
+    bbox: (Point, Point),
+}
+
+/// One input segment (line or arc) of some outline.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct SegInfo {
+    /// Index within its outline, counting the segments of all its loops.
+    pub local: u32,
+    /// The previous and next segment of the same loop (global ids).
+    pub prev: u32,
+    pub next: u32,
+}
+
+/// The whole input as polylines.
+pub(crate) struct Domain {
+    pub loops: Vec<PolyLoop>,
+    pub segs: Vec<SegInfo>,
+    /// Effective size of each shape (its mesh size, capped by `max_size`).
+    pub shape_sizes: Vec<f64>,
+    pub max_size: f64,
+    pub growth: f64,
+    /// Optional size cap at each vertex of each loop (used for fixed rims).
+    pub vertex_caps: Option<Vec<Vec<f64>>>,
+    /// Input edges may not be split (fixed rim).
+    pub fixed_boundary: bool,
+}
+
+impl PolyLoop {
+    pub(crate) fn new(points: Vec<Point>, seg: Vec<u32>, owner: u32, own_size: f64) -> PolyLoop {
+        let mut lo = [f64::INFINITY; 2];
+        let mut hi = [f64::NEG_INFINITY; 2];
+        for p in &points {
+            for k in 0..2 {
+                lo[k] = lo[k].min(p[k]);
+                hi[k] = hi[k].max(p[k]);
+            }
+        }
+        PolyLoop { points, seg, owner, own_size, bbox: (lo, hi) }
+    }
+
+    /// Ray-cast crossing parity of `p` (half-open rule on y).
+    fn crossings(&self, p: Point) -> bool {
+        if p[1] < self.bbox.0[1] || p[1] > self.bbox.1[1] || p[0] > self.bbox.1[0] {
+            return false;
+        }
+        let n = self.points.len();
+        let mut inside = false;
+        for i in 0..n {
+            let a = self.points[i];
+            let b = self.points[(i + 1) % n];
+            if (a[1] > p[1]) != (b[1] > p[1]) {
+                let x = a[0] + (p[1] - a[1]) * (b[0] - a[0]) / (b[1] - a[1]);
+                if x > p[0] {
+                    inside = !inside;
+                }
+            }
+        }
+        inside
+    }
+}
+
+impl Domain {
+    /// Discretise the outer outline and the shapes.
+    pub(crate) fn from_outlines(
+        outer: &Outline,
+        shapes: &[(&Outline, f64)],
+        max_size: f64,
+        growth: f64,
+        chord_fraction: f64,
+    ) -> Domain {
+        let mut domain = Domain {
+            loops: Vec::new(),
+            segs: Vec::new(),
+            shape_sizes: shapes.iter().map(|s| s.1.min(max_size)).collect(),
+            max_size,
+            growth,
+            vertex_caps: None,
+            fixed_boundary: false,
+        };
+        domain.add_outline(outer, OUTER_OWNER, max_size, chord_fraction);
+        for (i, (outline, size)) in shapes.iter().enumerate() {
+            domain.add_outline(outline, i as u32, size.min(max_size), chord_fraction);
+        }
+        domain
+    }
+
+    fn add_outline(&mut self, outline: &Outline, owner: u32, own_size: f64, chord_fraction: f64) {
+        let mut local = 0u32;
+        for l in &outline.loops {
+            let first = self.segs.len() as u32;
+            let n = l.segments.len() as u32;
+            let mut points = Vec::new();
+            let mut seg = Vec::new();
+            for (k, s) in l.segments.iter().enumerate() {
+                let g = first + k as u32;
+                self.segs.push(SegInfo {
+                    local,
+                    prev: first + (k as u32 + n - 1) % n,
+                    next: first + (k as u32 + 1) % n,
+                });
+                local += 1;
+                let pieces = match *s {
+                    Segment::Line { .. } => (s.length() / own_size).ceil().max(1.0) as usize,
+                    Segment::Arc { sweep, .. } => {
+                        arc_pieces(sweep, chord_fraction).max((s.length() / own_size).ceil() as usize)
+                    }
+                };
+                for j in 0..pieces {
+                    let t = j as f64 / pieces as f64;
+                    points.push(match *s {
+                        Segment::Line { from, to } => [from[0] + t * (to[0] - from[0]), from[1] + t * (to[1] - from[1])],
+                        Segment::Arc { center, radius, start, sweep } => polar(center, radius, start + t * sweep),
+                    });
+                    seg.push(g);
+                }
+            }
+            self.loops.push(PolyLoop::new(points, seg, owner, own_size));
+        }
+    }
+
+    /// The region of `p`: the last shape containing it, [`Mesh::OUTER_REGION`]
+    /// inside the outer outline only, or [`OUTSIDE`].
+    pub(crate) fn classify(&self, p: Point) -> u32 {
+        let mut inside_outer = false;
+        let mut shape_parity: Vec<(u32, bool)> = Vec::new();
+        for l in &self.loops {
+            let c = l.crossings(p);
+            if l.owner == OUTER_OWNER {
+                inside_outer ^= c;
+            } else if c {
+                match shape_parity.iter_mut().find(|e| e.0 == l.owner) {
+                    Some(e) => e.1 = !e.1,
+                    None => shape_parity.push((l.owner, true)),
+                }
+            }
+        }
+        if !inside_outer {
+            return OUTSIDE;
+        }
+        shape_parity.iter().filter(|e| e.1).map(|e| e.0).max().unwrap_or(Mesh::OUTER_REGION)
+    }
+
+    /// Size of a region label.
+    pub(crate) fn region_size(&self, label: u32) -> f64 {
+        match label {
+            OUTSIDE => f64::INFINITY,
+            l if (l as usize) < self.shape_sizes.len() => self.shape_sizes[l as usize],
+            _ => self.max_size,
+        }
+    }
+
+    /// Size cap from the local feature size at every vertex of every loop:
+    /// the distance to the nearest input segment that is neither the
+    /// vertex's own segment nor joined to it, over
+    /// [`ELEMENTS_ACROSS_FEATURE`].
+    pub(crate) fn feature_caps(&self) -> Vec<Vec<f64>> {
+        let mut edges = Vec::new();
+        let mut edge_seg = Vec::new();
+        for l in &self.loops {
+            let n = l.points.len();
+            for i in 0..n {
+                edges.push([l.points[i], l.points[(i + 1) % n]]);
+                edge_seg.push(l.seg[i]);
+            }
+        }
+        let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
+        for e in &edges {
+            for p in e {
+                for k in 0..2 {
+                    lo[k] = lo[k].min(p[k]);
+                    hi[k] = hi[k].max(p[k]);
+                }
+            }
+        }
+        let touch = 1e-9 * (hi[0] - lo[0]).max(hi[1] - lo[1]).max(1e-300);
+        let grid = SegmentGrid::new(&edges);
+        let mut caps = Vec::with_capacity(self.loops.len());
+        for l in &self.loops {
+            let n = l.points.len();
+            let mut cap = vec![f64::INFINITY; n];
+            for i in 0..n {
+                let p = l.points[i];
+                let own = [l.seg[(i + n - 1) % n], l.seg[i]];
+                let corner = own[0] != own[1];
+                let excluded = |s: u32| -> bool {
+                    own.contains(&s) || (!corner && (self.segs[own[0] as usize].prev == s || self.segs[own[0] as usize].next == s))
+                };
+                // Only features closer than this can lower the size.
+                let radius = ELEMENTS_ACROSS_FEATURE * l.own_size.min(self.max_size);
+                let mut best = f64::INFINITY;
+                grid.query([p[0] - radius, p[1] - radius], [p[0] + radius, p[1] + radius], |j| {
+                    if excluded(edge_seg[j]) {
+                        return;
+                    }
+                    let [a, b] = edges[j];
+                    let (d, t) = point_segment_distance(p, a, b);
+                    if d <= touch || d >= best {
+                        return;
+                    }
+                    // A nearest point on this edge that also lies on the
+                    // vertex's own segments is a shared corner, not a gap.
+                    let q = [a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1])];
+                    let mut on_own = false;
+                    grid.query([q[0] - touch, q[1] - touch], [q[0] + touch, q[1] + touch], |k| {
+                        if !on_own && own.contains(&edge_seg[k]) {
+                            let [c, e] = edges[k];
+                            on_own = point_segment_distance(q, c, e).0 <= touch;
+                        }
+                    });
+                    if !on_own {
+                        best = d;
+                    }
+                });
+                cap[i] = best / ELEMENTS_ACROSS_FEATURE;
+            }
+            caps.push(cap);
+        }
+        if let Some(vc) = &self.vertex_caps {
+            for (cap, extra) in caps.iter_mut().zip(vc) {
+                for (c, e) in cap.iter_mut().zip(extra) {
+                    *c = c.min(*e);
+                }
+            }
+        }
+        caps
+    }
+}

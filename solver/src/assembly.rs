@@ -1,0 +1,311 @@
+//! Degrees of freedom, the sparsity pattern and in-place assembly.
+//!
+//! The pattern of the reduced system (free unknowns only, after fixed values
+//! and periodic partners are eliminated) is built once per mesh, together
+//! with a scatter table that sends each entry of each element matrix to its
+//! slot in the value array. Every Newton step then recomputes the element
+//! matrices (in parallel, in chunks) and adds them into the slots: no
+//! triplet list is rebuilt and no sparse matrix is reallocated.
+
+use crate::boundary::{Constraints, DofTarget};
+use crate::fe::{self, packed_index, packed_len, ElementLoad, ElementOrder, Triangle, MAX_LOCAL};
+use crate::fe::quadrature::TriangleRule;
+use crate::problem::{Problem, SolveError};
+use fluxwright_mesher::Mesh;
+use rayon::prelude::*;
+
+/// Numbering of the degrees of freedom: mesh nodes first, then (P2) one
+/// mid-edge node per edge, numbered `nodes.len() + edge`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct DofMap {
+    /// Element order.
+    pub order: ElementOrder,
+    /// Number of dofs.
+    pub n_dofs: usize,
+    /// Number of mesh nodes (the first dofs).
+    pub n_nodes: usize,
+    /// Local-to-global dofs, `order.local_dofs()` per triangle.
+    pub element_dofs: Vec<u32>,
+    /// Position of every dof, m.
+    pub coords: Vec<[f64; 2]>,
+    /// Sorted edges (P2 only), for mid-edge lookups.
+    edges: Vec<[u32; 2]>,
+}
+
+impl DofMap {
+    /// Number the dofs of `mesh` for elements of `order`, with coordinates
+    /// scaled by `length_scale_m`.
+    pub fn new(mesh: &Mesh, order: ElementOrder, length_scale_m: f64) -> DofMap {
+        let s = length_scale_m;
+        let n_nodes = mesh.nodes.len();
+        let mut coords: Vec<[f64; 2]> = mesh.nodes.iter().map(|p| [p[0] * s, p[1] * s]).collect();
+        match order {
+            ElementOrder::P1 => {
+                let element_dofs = mesh.triangles.iter().flatten().copied().collect();
+                DofMap { order, n_dofs: n_nodes, n_nodes, element_dofs, coords, edges: Vec::new() }
+            }
+            ElementOrder::P2 => {
+                let topo = mesh.edge_topology();
+                for &[a, b] in &topo.edges {
+                    let (p, q) = (coords[a as usize], coords[b as usize]);
+                    coords.push([0.5 * (p[0] + q[0]), 0.5 * (p[1] + q[1])]);
+                }
+                let mut element_dofs = Vec::with_capacity(6 * mesh.triangles.len());
+                for (tri, te) in mesh.triangles.iter().zip(&topo.triangle_edges) {
+                    element_dofs.extend_from_slice(tri);
+                    element_dofs.extend(te.iter().map(|&e| n_nodes as u32 + e));
+                }
+                DofMap { order, n_dofs: n_nodes + topo.edges.len(), n_nodes, element_dofs, coords, edges: topo.edges }
+            }
+        }
+    }
+
+    /// The dofs of triangle `t`.
+    pub fn element(&self, t: usize) -> &[u32] {
+        let n = self.order.local_dofs();
+        &self.element_dofs[t * n..(t + 1) * n]
+    }
+
+    /// The mid-edge dof of the edge between nodes `a` and `b` (P2), if that
+    /// edge exists.
+    pub fn edge_dof(&self, a: u32, b: u32) -> Option<u32> {
+        let key = if a < b { [a, b] } else { [b, a] };
+        self.edges.binary_search(&key).ok().map(|e| (self.n_nodes + e) as u32)
+    }
+}
+
+/// The upper triangle (row ≤ column) of a symmetric n × n sparse matrix in
+/// compressed sparse column form, rows sorted within each column, diagonal
+/// always present.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct SparsityPattern {
+    /// Dimension.
+    pub n: usize,
+    /// Column starts, length n + 1.
+    pub col_ptr: Vec<usize>,
+    /// Row of each stored entry.
+    pub row_idx: Vec<usize>,
+}
+
+impl SparsityPattern {
+    /// Number of stored entries.
+    pub fn nnz(&self) -> usize {
+        self.row_idx.len()
+    }
+
+    /// Slot of entry (row, col), row ≤ col, if stored.
+    pub fn position(&self, row: usize, col: usize) -> Option<usize> {
+        let range = self.col_ptr[col]..self.col_ptr[col + 1];
+        self.row_idx[range.clone()].binary_search(&row).ok().map(|k| range.start + k)
+    }
+
+    /// y = A x with the symmetric matrix whose upper triangle holds `values`.
+    pub fn sym_mul(&self, values: &[f64], x: &[f64], y: &mut [f64]) {
+        y.fill(0.0);
+        for col in 0..self.n {
+            for k in self.col_ptr[col]..self.col_ptr[col + 1] {
+                let row = self.row_idx[k];
+                y[row] += values[k] * x[col];
+                if row != col {
+                    y[col] += values[k] * x[row];
+                }
+            }
+        }
+    }
+}
+
+/// Elements per parallel work unit: large enough to amortise the task, small
+/// enough that the element buffers stay in cache-friendly sizes.
+const CHUNK: usize = 4096;
+
+/// The reduced system of a problem: dofs, constraints, pattern and the
+/// element-to-slot scatter table, built once; values recomputed on demand.
+pub struct Assembler<'p> {
+    problem: &'p Problem<'p>,
+    /// The dofs.
+    pub dofs: DofMap,
+    /// The constraints.
+    pub constraints: Constraints,
+    /// The pattern of the reduced matrix.
+    pub pattern: SparsityPattern,
+    triangles: Vec<Triangle>,
+    region_slot: Vec<u32>,
+    /// Per element and packed local pair: the value slot, or u32::MAX.
+    scatter: Vec<u32>,
+    /// Per element and packed local pair: sign product × multiplicity.
+    factor: Vec<i8>,
+    rule: TriangleRule,
+    source_rule: TriangleRule,
+}
+
+impl<'p> Assembler<'p> {
+    /// Validate `problem`, number its dofs, resolve its constraints and
+    /// build the pattern and scatter table.
+    pub fn new(problem: &'p Problem<'p>) -> Result<Assembler<'p>, SolveError> {
+        problem.validate()?;
+        let mesh = problem.mesh;
+        let dofs = DofMap::new(mesh, problem.order, problem.length_scale_m);
+        let constraints = Constraints::new(problem, &dofs)?;
+        let n_loc = problem.order.local_dofs();
+        let n_pairs = packed_len(n_loc);
+        let n_tri = mesh.triangles.len();
+        let last = problem.regions.len() - 1;
+        let region_slot =
+            mesh.regions.iter().map(|&r| if r == Mesh::OUTER_REGION { last as u32 } else { r }).collect();
+        let s = problem.length_scale_m;
+        let triangles = mesh
+            .triangles
+            .par_iter()
+            .map(|t| Triangle::new(t.map(|i| {
+                let p = mesh.nodes[i as usize];
+                [p[0] * s, p[1] * s]
+            })))
+            .collect();
+        // Reduced (row, col, factor) of every local pair.
+        let reduced = |t: usize, a: usize, b: usize| -> Option<(u32, u32, i8)> {
+            let d = dofs.element(t);
+            match (constraints.target[d[a] as usize], constraints.target[d[b] as usize]) {
+                (DofTarget::Free { index: i, sign: si }, DofTarget::Free { index: j, sign: sj }) => {
+                    let mult = if a != b && i == j { 2 } else { 1 };
+                    Some((i.min(j), i.max(j), (si * sj) as i8 * mult))
+                }
+                _ => None,
+            }
+        };
+        let mut keys: Vec<u64> = (0..n_tri)
+            .into_par_iter()
+            .flat_map_iter(|t| {
+                (0..n_loc).flat_map(move |a| (a..n_loc).map(move |b| (a, b))).filter_map(move |(a, b)| {
+                    reduced(t, a, b).map(|(row, col, _)| ((col as u64) << 32) | row as u64)
+                })
+            })
+            .collect();
+        keys.par_sort_unstable();
+        keys.dedup();
+        let n = constraints.n_free;
+        let mut col_ptr = vec![0usize; n + 1];
+        let mut row_idx = Vec::with_capacity(keys.len());
+        for &k in &keys {
+            col_ptr[(k >> 32) as usize + 1] += 1;
+            row_idx.push((k & 0xffff_ffff) as usize);
+        }
+        for c in 0..n {
+            col_ptr[c + 1] += col_ptr[c];
+        }
+        let pattern = SparsityPattern { n, col_ptr, row_idx };
+        let mut scatter = vec![u32::MAX; n_tri * n_pairs];
+        let mut factor = vec![0i8; n_tri * n_pairs];
+        scatter.par_chunks_mut(n_pairs).zip(factor.par_chunks_mut(n_pairs)).enumerate().for_each(|(t, (sc, fa))| {
+            for a in 0..n_loc {
+                for b in a..n_loc {
+                    if let Some((row, col, f)) = reduced(t, a, b) {
+                        let k = packed_index(n_loc, a, b);
+                        // Every reduced pair was inserted above.
+                        sc[k] = pattern.position(row as usize, col as usize).map_or(u32::MAX, |p| p as u32);
+                        fa[k] = f;
+                    }
+                }
+            }
+        });
+        Ok(Assembler {
+            problem,
+            dofs,
+            constraints,
+            pattern,
+            triangles,
+            region_slot,
+            scatter,
+            factor,
+            rule: fe::element_rule(problem.order, problem.symmetry),
+            source_rule: fe::quadrature::dunavant(6),
+        })
+    }
+
+    /// The problem.
+    pub fn problem(&self) -> &'p Problem<'p> {
+        self.problem
+    }
+
+    /// The straight-sided triangle `t` in metres.
+    pub fn triangle(&self, t: usize) -> &Triangle {
+        &self.triangles[t]
+    }
+
+    /// The region properties of triangle `t`.
+    pub fn region_props(&self, t: usize) -> &crate::problem::RegionProps {
+        &self.problem.regions[self.region_slot[t] as usize]
+    }
+
+    /// A full dof vector with the fixed values in place and zero elsewhere.
+    pub fn initial_potential(&self) -> Vec<f64> {
+        let mut u = vec![0.0; self.dofs.n_dofs];
+        self.constraints.expand(&vec![0.0; self.constraints.n_free], &mut u);
+        u
+    }
+
+    /// The reduced residual at the full dof vector `u` (fixed values
+    /// included) into `residual` (length n_free), and, when `values` is
+    /// given, the reduced tangent matrix into it (length `pattern.nnz()`,
+    /// overwritten).
+    pub fn assemble(&self, u: &[f64], mut values: Option<&mut [f64]>, residual: &mut [f64]) {
+        let n_loc = self.problem.order.local_dofs();
+        let n_pairs = packed_len(n_loc);
+        let n_tri = self.triangles.len();
+        residual.fill(0.0);
+        if let Some(v) = values.as_deref_mut() {
+            v.fill(0.0);
+        }
+        let want_tangent = values.is_some();
+        let mut k_buf = vec![0.0; CHUNK * n_pairs];
+        let mut r_buf = vec![0.0; CHUNK * n_loc];
+        let source = self.problem.source.as_deref();
+        for start in (0..n_tri).step_by(CHUNK) {
+            let end = (start + CHUNK).min(n_tri);
+            let len = end - start;
+            let kernel = |t: usize, r: &mut [f64], k: Option<&mut [f64]>| {
+                let d = self.dofs.element(t);
+                let mut ul = [0.0; MAX_LOCAL];
+                for a in 0..n_loc {
+                    ul[a] = u[d[a] as usize];
+                }
+                let props = self.region_props(t);
+                let load = ElementLoad {
+                    material: &props.material,
+                    current_density: props.current_density_a_per_m2,
+                    source: source.map(|s| (s, &self.source_rule)),
+                    length_scale_m: self.problem.length_scale_m,
+                };
+                fe::element_system(&self.triangles[t], self.problem.order, self.problem.symmetry, &self.rule, &load, &ul, r, k);
+            };
+            let rs = &mut r_buf[..len * n_loc];
+            if want_tangent {
+                let ks = &mut k_buf[..len * n_pairs];
+                rs.par_chunks_mut(n_loc)
+                    .zip(ks.par_chunks_mut(n_pairs))
+                    .enumerate()
+                    .for_each(|(i, (r, k))| kernel(start + i, r, Some(k)));
+            } else {
+                rs.par_chunks_mut(n_loc).enumerate().for_each(|(i, r)| kernel(start + i, r, None));
+            }
+            for i in 0..len {
+                let t = start + i;
+                let d = self.dofs.element(t);
+                for a in 0..n_loc {
+                    if let DofTarget::Free { index, sign } = self.constraints.target[d[a] as usize] {
+                        residual[index as usize] += sign * r_buf[i * n_loc + a];
+                    }
+                }
+                if let Some(v) = values.as_deref_mut() {
+                    let sc = &self.scatter[t * n_pairs..(t + 1) * n_pairs];
+                    let fa = &self.factor[t * n_pairs..(t + 1) * n_pairs];
+                    let ke = &k_buf[i * n_pairs..(i + 1) * n_pairs];
+                    for k in 0..n_pairs {
+                        if sc[k] != u32::MAX {
+                            v[sc[k] as usize] += f64::from(fa[k]) * ke[k];
+                        }
+                    }
+                }
+            }
+        }
+    }
+}
