@@ -71,7 +71,7 @@ pub(crate) struct Refiner<'a> {
     min_len2: f64,
     fixed_boundary: bool,
     max_vertices: usize,
-    faces: VecDeque<(FixedFaceHandle<InnerTag>, [u32; 3])>,
+    faces: VecDeque<FixedFaceHandle<InnerTag>>,
     segments: VecDeque<(FixedUndirectedEdgeHandle, [u32; 2])>,
     outcome: RefineOutcome,
     /// A constraint could not be restored after a split (geometry too
@@ -132,14 +132,10 @@ impl<'a> Refiner<'a> {
         }
     }
 
-    fn face_key(&self, f: FixedFaceHandle<InnerTag>) -> [u32; 3] {
-        self.cdt.face(f).vertices().map(|v| v.fix().index() as u32)
-    }
-
     fn push_face(&mut self, f: FixedFaceHandle<InnerTag>) {
+        // Entries are not versioned: a popped face is judged as it is then.
         if self.badness(f).is_some() {
-            let key = self.face_key(f);
-            self.faces.push_back((f, key));
+            self.faces.push_back(f);
         }
     }
 
@@ -192,6 +188,26 @@ impl<'a> Refiner<'a> {
     }
 
     pub(crate) fn run(mut self) -> RefineOutcome {
+        // Sweep until a full pass over the faces finds nothing to do (a
+        // split that re-adds a constraint may change faces away from the
+        // new vertex, which the queues would not see).
+        for _ in 0..8 {
+            self.drain();
+            if self.outcome.budget_hit {
+                break;
+            }
+            let n_before = self.cdt.num_vertices();
+            self.seed();
+            self.drain();
+            if self.cdt.num_vertices() == n_before {
+                break;
+            }
+        }
+        self.outcome.broken = self.broken;
+        self.outcome
+    }
+
+    fn drain(&mut self) {
         loop {
             if self.cdt.num_vertices() >= self.max_vertices {
                 self.outcome.budget_hit = true;
@@ -211,17 +227,12 @@ impl<'a> Refiner<'a> {
                 }
                 continue;
             }
-            if let Some((f, key)) = self.faces.pop_front() {
-                if self.face_key(f) != key {
-                    continue;
-                }
+            if let Some(f) = self.faces.pop_front() {
                 self.refine_face(f);
                 continue;
             }
             break;
         }
-        self.outcome.broken = self.broken;
-        self.outcome
     }
 
     fn is_encroached(&self, e: FixedUndirectedEdgeHandle) -> bool {
@@ -372,10 +383,7 @@ impl<'a> Refiner<'a> {
     }
 
     fn requeue(&mut self, f: FixedFaceHandle<InnerTag>) {
-        if f.index() < self.cdt.num_all_faces() {
-            let key = self.face_key(f);
-            self.faces.push_back((f, key));
-        }
+        self.faces.push_back(f);
     }
 
     fn after_insert(&mut self, v: FixedVertexHandle) {

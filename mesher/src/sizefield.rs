@@ -371,10 +371,25 @@ where
         while let Some(f) = queue.pop_front() {
             members.push(f);
             let fh = cdt.face(f);
+            // A few thousand candidates give a face far enough from the
+            // component's edges.
+            if members.len() > 4096 {
+                for e in fh.adjacent_edges() {
+                    if !e.is_constraint_edge() {
+                        if let Some(g) = e.rev().face().as_inner() {
+                            if label[g.fix().index()] == UNSET {
+                                label[g.fix().index()] = 0;
+                                queue.push_back(g.fix());
+                            }
+                        }
+                    }
+                }
+                continue;
+            }
             let ps = fh.positions();
             let l: [f64; 3] = [0, 1, 2].map(|k| {
                 let (a, b) = (ps[k], ps[(k + 1) % 3]);
-                (a.x - b.x).hypot(a.y - b.y)
+                ((a.x - b.x).powi(2) + (a.y - b.y).powi(2)).sqrt()
             });
             let per = l[0] + l[1] + l[2];
             let area2 = ((ps[1].x - ps[0].x) * (ps[2].y - ps[0].y) - (ps[1].y - ps[0].y) * (ps[2].x - ps[0].x)).abs();

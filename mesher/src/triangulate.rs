@@ -356,7 +356,7 @@ fn extract(domain: &Domain, cdt: &MeshCdt) -> Result<Mesh, MeshError> {
     let labels = label_components(cdt, |p| domain.classify(p));
     let mut node_of = vec![u32::MAX; cdt.num_vertices()];
     let mut mesh = Mesh::default();
-    let kept = cdt.inner_faces().filter(|f| labels[f.fix().index()] != OUTSIDE).count();
+    let kept = cdt.num_inner_faces();
     mesh.triangles.reserve(kept);
     mesh.regions.reserve(kept);
     mesh.nodes.reserve(cdt.num_vertices());

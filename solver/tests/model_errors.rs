@@ -17,10 +17,18 @@ fn errors(text: &str) -> ModelErrors {
 #[track_caller]
 fn check(text: &str, kind: ErrorKind, line: Option<usize>, culprit: &[&str]) {
     let all = errors(text);
-    let found = all.errors.iter().find(|e| e.kind == kind && culprit.iter().all(|c| e.what.contains(c)));
-    let Some(e) = found else { panic!("no {kind:?} error mentioning {culprit:?} in:\n{all}") };
+    let found = all
+        .errors
+        .iter()
+        .find(|e| e.kind == kind && culprit.iter().all(|c| e.what.contains(c)));
+    let Some(e) = found else {
+        panic!("no {kind:?} error mentioning {culprit:?} in:\n{all}")
+    };
     let shown = e.to_string();
-    assert!(shown.starts_with(FILE), "message must name the file: {shown}");
+    assert!(
+        shown.starts_with(FILE),
+        "message must name the file: {shown}"
+    );
     if let Some(line) = line {
         assert_eq!(e.line, Some(line), "wrong line in: {shown}");
         assert!(shown.starts_with(&format!("{FILE}:{line}:")), "{shown}");
@@ -40,20 +48,34 @@ fn syntax_error_gives_line_and_column() {
 
 #[test]
 fn unknown_key_suggests_the_nearest() {
-    let text = format!("[materials.core]\nrelative_permability = 1000\n\n{SQUARE}material = \"core\"\n");
+    let text =
+        format!("[materials.core]\nrelative_permability = 1000\n\n{SQUARE}material = \"core\"\n");
     check(
         &text,
         ErrorKind::UnknownKey,
         Some(2),
-        &["unknown key `relative_permability` in [materials.core]", "did you mean `relative_permeability`?"],
+        &[
+            "unknown key `relative_permability` in [materials.core]",
+            "did you mean `relative_permeability`?",
+        ],
     );
 }
 
 #[test]
 fn unknown_table_and_misplaced_key() {
-    check(&format!("[meshh]\nmax_size = 1\n{SQUARE}"), ErrorKind::UnknownKey, Some(1), &["`meshh`", "`mesh`"]);
+    check(
+        &format!("[meshh]\nmax_size = 1\n{SQUARE}"),
+        ErrorKind::UnknownKey,
+        Some(1),
+        &["`meshh`", "`mesh`"],
+    );
     // `turns` is a winding key, not a shape key.
-    check(&format!("{SQUARE}turns = 10\n"), ErrorKind::UnknownKey, Some(4), &["`turns`", "shape `sq`", "[windings.NAME]"]);
+    check(
+        &format!("{SQUARE}turns = 10\n"),
+        ErrorKind::UnknownKey,
+        Some(4),
+        &["`turns`", "shape `sq`", "[windings.NAME]"],
+    );
     // Unknown key inside an inline outline table.
     check(
         "[[shape]]\ncircle = { centre = [0, 0], radius = 1 }\n",
@@ -71,14 +93,29 @@ fn wrong_value_type() {
         Some(2),
         &["`turns`", "[windings.coil]", "number", "string"],
     );
-    check(&format!("{SQUARE}translate = [1, 2, 3]\n"), ErrorKind::WrongType, Some(4), &["`translate`", "shape `sq`"]);
+    check(
+        &format!("{SQUARE}translate = [1, 2, 3]\n"),
+        ErrorKind::WrongType,
+        Some(4),
+        &["`translate`", "shape `sq`"],
+    );
 }
 
 #[test]
 fn undefined_material_and_winding() {
     let text = format!("[materials.copper]\nrelative_permeability = 1\n{SQUARE}material = \"coper\"\nwinding = \"coil\"\n");
-    check(&text, ErrorKind::UndefinedName, Some(6), &["shape `sq`", "material `coper`", "did you mean `copper`"]);
-    check(&text, ErrorKind::UndefinedName, Some(7), &["shape `sq`", "winding `coil`"]);
+    check(
+        &text,
+        ErrorKind::UndefinedName,
+        Some(6),
+        &["shape `sq`", "material `coper`", "did you mean `copper`"],
+    );
+    check(
+        &text,
+        ErrorKind::UndefinedName,
+        Some(7),
+        &["shape `sq`", "winding `coil`"],
+    );
 }
 
 #[test]
@@ -86,22 +123,57 @@ fn undefined_shapes_in_force_torque_and_sweep() {
     let text = format!(
         "{SQUARE}\n[[force]]\nname = \"pull\"\nshapes = [\"sq\", \"armature\"]\n\n[[torque]]\nname = \"t\"\nshapes = [\"sqq\"]\n\n[sweep]\nmove = {{ shapes = [\"plunger\"], along = [0, 1], from = 0, to = 1, steps = 2 }}\n"
     );
-    check(&text, ErrorKind::UndefinedName, Some(7), &["[[force]] `pull`", "shape `armature`"]);
-    check(&text, ErrorKind::UndefinedName, Some(11), &["[[torque]] `t`", "shape `sqq`", "did you mean `sq`"]);
-    check(&text, ErrorKind::UndefinedName, Some(14), &["[sweep] move", "shape `plunger`"]);
-    assert_eq!(errors(&text).errors.len(), 3, "all three reported: {}", errors(&text));
+    check(
+        &text,
+        ErrorKind::UndefinedName,
+        Some(7),
+        &["[[force]] `pull`", "shape `armature`"],
+    );
+    check(
+        &text,
+        ErrorKind::UndefinedName,
+        Some(11),
+        &["[[torque]] `t`", "shape `sqq`", "did you mean `sq`"],
+    );
+    check(
+        &text,
+        ErrorKind::UndefinedName,
+        Some(14),
+        &["[sweep] move", "shape `plunger`"],
+    );
+    assert_eq!(
+        errors(&text).errors.len(),
+        3,
+        "all three reported: {}",
+        errors(&text)
+    );
 }
 
 #[test]
 fn undefined_winding_in_sweep() {
     let text = format!("[windings.main]\nturns = 3\ncurrent = 1\n{SQUARE}winding = \"main\"\n[sweep]\ncurrent = {{ winding = \"mian\", from = 0, to = 1, steps = 1 }}\n");
-    check(&text, ErrorKind::UndefinedName, Some(9), &["[sweep] current", "winding `mian`", "did you mean `main`"]);
+    check(
+        &text,
+        ErrorKind::UndefinedName,
+        Some(9),
+        &["[sweep] current", "winding `mian`", "did you mean `main`"],
+    );
 }
 
 #[test]
 fn non_finite_numbers() {
-    check("[[shape]]\ncircle = { center = [0, 0], radius = nan }\n", ErrorKind::OutOfRange, Some(2), &["`radius`", "finite", "NaN"]);
-    check(&format!("{SQUARE}current = inf\n"), ErrorKind::OutOfRange, Some(4), &["`current`", "shape `sq`", "finite"]);
+    check(
+        "[[shape]]\ncircle = { center = [0, 0], radius = nan }\n",
+        ErrorKind::OutOfRange,
+        Some(2),
+        &["`radius`", "finite", "NaN"],
+    );
+    check(
+        &format!("{SQUARE}current = inf\n"),
+        ErrorKind::OutOfRange,
+        Some(4),
+        &["`current`", "shape `sq`", "finite"],
+    );
     check(
         "[[shape]]\npolygon = [[0, 0], [1, -inf], [1, 1]]\n",
         ErrorKind::OutOfRange,
@@ -113,7 +185,12 @@ fn non_finite_numbers() {
 #[test]
 fn numbers_out_of_range() {
     let w = |turns: &str| format!("[windings.coil]\nturns = {turns}\n{SQUARE}winding = \"coil\"\n");
-    check(&w("-5"), ErrorKind::OutOfRange, Some(2), &["`turns`", "[windings.coil]", "> 0"]);
+    check(
+        &w("-5"),
+        ErrorKind::OutOfRange,
+        Some(2),
+        &["`turns`", "[windings.coil]", "> 0"],
+    );
     check(&w("0"), ErrorKind::OutOfRange, Some(2), &["`turns`"]);
     for r in ["0", "-1"] {
         check(
@@ -125,42 +202,92 @@ fn numbers_out_of_range() {
     }
     let mat = |kv: &str| format!("[materials.m]\n{kv}\n{SQUARE}material = \"m\"\n");
     for mu in ["0.5", "0", "-2"] {
-        check(&mat(&format!("relative_permeability = {mu}")), ErrorKind::OutOfRange, Some(2), &["`relative_permeability`", "[materials.m]", "≥ 1"]);
+        check(
+            &mat(&format!("relative_permeability = {mu}")),
+            ErrorKind::OutOfRange,
+            Some(2),
+            &["`relative_permeability`", "[materials.m]", "≥ 1"],
+        );
     }
     for f in ["0", "1.5", "-0.1"] {
         check(
-            &mat(&format!("relative_permeability = 100\nstacking_factor = {f}")),
+            &mat(&format!(
+                "relative_permeability = 100\nstacking_factor = {f}"
+            )),
             ErrorKind::OutOfRange,
             Some(3),
             &["`stacking_factor`", "[materials.m]", "(0, 1]"],
         );
     }
-    check(&format!("[model]\nelement_order = 3\n{SQUARE}"), ErrorKind::OutOfRange, Some(2), &["`element_order`", "from 1 to 2"]);
-    check(&format!("{SQUARE}mesh_size = -1\n"), ErrorKind::OutOfRange, Some(4), &["`mesh_size`", "shape `sq`"]);
-    check(&format!("[mesh]\ngrowth = 1.0\n{SQUARE}"), ErrorKind::OutOfRange, Some(2), &["`growth`", "[mesh]", "> 1"]);
+    check(
+        &format!("[model]\nelement_order = 3\n{SQUARE}"),
+        ErrorKind::OutOfRange,
+        Some(2),
+        &["`element_order`", "from 1 to 2"],
+    );
+    check(
+        &format!("{SQUARE}mesh_size = -1\n"),
+        ErrorKind::OutOfRange,
+        Some(4),
+        &["`mesh_size`", "shape `sq`"],
+    );
+    check(
+        &format!("[mesh]\ngrowth = 1.0\n{SQUARE}"),
+        ErrorKind::OutOfRange,
+        Some(2),
+        &["`growth`", "[mesh]", "> 1"],
+    );
     for a in ["0", "40", "-5"] {
-        check(&format!("[mesh]\nmin_angle = {a}\n{SQUARE}"), ErrorKind::OutOfRange, Some(2), &["`min_angle`", "(0, 34]"]);
+        check(
+            &format!("[mesh]\nmin_angle = {a}\n{SQUARE}"),
+            ErrorKind::OutOfRange,
+            Some(2),
+            &["`min_angle`", "(0, 34]"],
+        );
     }
-    check(&format!("{SQUARE}direction = 0.5\n"), ErrorKind::OutOfRange, Some(4), &["`direction`", "shape `sq`", "+1"]);
+    check(
+        &format!("{SQUARE}direction = 0.5\n"),
+        ErrorKind::OutOfRange,
+        Some(4),
+        &["`direction`", "shape `sq`", "+1"],
+    );
     check(
         &format!("{SQUARE}[[profile]]\nname = \"p\"\nfrom = [0, 0]\nto = [1, 1]\nsamples = 1\n"),
         ErrorKind::OutOfRange,
         Some(8),
         &["`samples`", "[[profile]] `p`", "from 2 to"],
     );
-    check(&format!("[model]\nlength_unit = \"mm2\"\n{SQUARE}"), ErrorKind::OutOfRange, Some(2), &["`length_unit`", "\"mm\""]);
-    check(&format!("{SQUARE}repeat = {{ count = 0 }}\n"), ErrorKind::OutOfRange, Some(4), &["`count`", "`repeat` of shape `sq`"]);
+    check(
+        &format!("[model]\nlength_unit = \"mm2\"\n{SQUARE}"),
+        ErrorKind::OutOfRange,
+        Some(2),
+        &["`length_unit`", "\"mm\""],
+    );
+    check(
+        &format!("{SQUARE}repeat = {{ count = 0 }}\n"),
+        ErrorKind::OutOfRange,
+        Some(4),
+        &["`count`", "`repeat` of shape `sq`"],
+    );
 }
 
 #[test]
 fn material_needs_exactly_one_permeability() {
     let mat = |kv: &str| format!("[materials.m]\n{kv}\n{SQUARE}material = \"m\"\n");
-    check(&mat("stacking_factor = 0.9"), ErrorKind::Conflict, Some(1), &["[materials.m]", "no permeability"]);
+    check(
+        &mat("stacking_factor = 0.9"),
+        ErrorKind::Conflict,
+        Some(1),
+        &["[materials.m]", "no permeability"],
+    );
     check(
         &mat("relative_permeability = 100\nbh_curve = { h = [0, 1], b = [0, 1] }"),
         ErrorKind::Conflict,
         Some(3),
-        &["[materials.m]", "both `relative_permeability` and `bh_curve`"],
+        &[
+            "[materials.m]",
+            "both `relative_permeability` and `bh_curve`",
+        ],
     );
     check(
         &mat("bh_curve = { h = [0, 1], b = [0, 1] }\nbh_curve_file = \"steel.csv\""),
@@ -182,7 +309,12 @@ fn unknown_library_material() {
 
 #[test]
 fn air_cannot_be_redefined() {
-    check(&format!("[materials.air]\nrelative_permeability = 1\n{SQUARE}"), ErrorKind::DuplicateName, Some(1), &["`air` is built in"]);
+    check(
+        &format!("[materials.air]\nrelative_permeability = 1\n{SQUARE}"),
+        ErrorKind::DuplicateName,
+        Some(1),
+        &["`air` is built in"],
+    );
 }
 
 #[test]
@@ -199,7 +331,12 @@ fn bad_polygons() {
         Some(1),
         &["shape `flat`"],
     );
-    check("[[shape]]\nname = \"two\"\npolygon = [[0, 0], [1, 0]]\n", ErrorKind::Geometry, Some(3), &["shape `two`", "at least 3"]);
+    check(
+        "[[shape]]\nname = \"two\"\npolygon = [[0, 0], [1, 0]]\n",
+        ErrorKind::Geometry,
+        Some(3),
+        &["shape `two`", "at least 3"],
+    );
     check(
         "[[shape]]\nname = \"r\"\nrectangle = { min = [1, 0], max = [0, 1] }\n",
         ErrorKind::Geometry,
@@ -232,8 +369,18 @@ fn probes_and_loops_outside_the_outer() {
     let text = format!(
         "{SQUARE}[outer]\nshape = {{ circle = {{ center = [5, 5], radius = 20 }} }}\n[[probe]]\nname = \"far\"\nat = [100, 0]\n[[loop]]\nname = \"big\"\ncircle = {{ center = [5, 5], radius = 30 }}\n"
     );
-    check(&text, ErrorKind::Geometry, Some(7), &["[[probe]] `far`", "outside"]);
-    check(&text, ErrorKind::Geometry, Some(10), &["[[loop]] `big`", "outside"]);
+    check(
+        &text,
+        ErrorKind::Geometry,
+        Some(7),
+        &["[[probe]] `far`", "outside"],
+    );
+    check(
+        &text,
+        ErrorKind::Geometry,
+        Some(10),
+        &["[[loop]] `big`", "outside"],
+    );
 }
 
 #[test]
@@ -254,15 +401,52 @@ fn axisymmetric_shape_left_of_the_axis() {
 
 #[test]
 fn bad_bh_curves() {
-    let mat = |curve: &str| format!("[materials.iron]\nbh_curve = {curve}\n{SQUARE}material = \"iron\"\n");
-    check(&mat("{ h = [10, 100], b = [0, 1] }"), ErrorKind::BhCurve, Some(2), &["[materials.iron]", "start at H = 0, B = 0"]);
-    check(&mat("{ h = [0, 100, 50], b = [0, 1, 1.2] }"), ErrorKind::BhCurve, Some(2), &["[materials.iron]", "increasing in H", "point 3"]);
-    check(&mat("{ h = [0, 100, 200], b = [0, 1, 0.9] }"), ErrorKind::BhCurve, Some(2), &["increasing in B"]);
-    check(&mat("{ h = [0, 100, 200], b = [0, 1] }"), ErrorKind::BhCurve, Some(2), &["3 H values but 2 B values"]);
-    check(&mat("{ h = [0], b = [0] }"), ErrorKind::BhCurve, Some(2), &["at least 2"]);
-    check(&mat("{ h = [0, 100] }"), ErrorKind::MissingKey, Some(2), &["needs `b`"]);
+    let mat = |curve: &str| {
+        format!("[materials.iron]\nbh_curve = {curve}\n{SQUARE}material = \"iron\"\n")
+    };
+    check(
+        &mat("{ h = [10, 100], b = [0, 1] }"),
+        ErrorKind::BhCurve,
+        Some(2),
+        &["[materials.iron]", "start at H = 0, B = 0"],
+    );
+    check(
+        &mat("{ h = [0, 100, 50], b = [0, 1, 1.2] }"),
+        ErrorKind::BhCurve,
+        Some(2),
+        &["[materials.iron]", "increasing in H", "point 3"],
+    );
+    check(
+        &mat("{ h = [0, 100, 200], b = [0, 1, 0.9] }"),
+        ErrorKind::BhCurve,
+        Some(2),
+        &["increasing in B"],
+    );
+    check(
+        &mat("{ h = [0, 100, 200], b = [0, 1] }"),
+        ErrorKind::BhCurve,
+        Some(2),
+        &["3 H values but 2 B values"],
+    );
+    check(
+        &mat("{ h = [0], b = [0] }"),
+        ErrorKind::BhCurve,
+        Some(2),
+        &["at least 2"],
+    );
+    check(
+        &mat("{ h = [0, 100] }"),
+        ErrorKind::MissingKey,
+        Some(2),
+        &["needs `b`"],
+    );
     // H given in kA/m by mistake: B/H falls below μ0.
-    check(&mat("{ h = [0, 1000, 2000], b = [0, 0.001, 0.0015] }"), ErrorKind::BhCurve, Some(2), &["below μ0", "units"]);
+    check(
+        &mat("{ h = [0, 1000, 2000], b = [0, 0.001, 0.0015] }"),
+        ErrorKind::BhCurve,
+        Some(2),
+        &["below μ0", "units"],
+    );
     // A magnet with a B-H curve instead of a recoil permeability.
     check(
         &format!("[materials.iron]\nbh_curve = {{ h = [0, 100], b = [0, 1] }}\nremanence = 1.1\n{SQUARE}material = \"iron\"\n"),
@@ -282,13 +466,24 @@ fn bh_curve_file_problems() {
         }
     };
     for (file, needles) in [
-        ("missing.csv", vec!["cannot read", "\"missing.csv\"", "no such file"]),
+        (
+            "missing.csv",
+            vec!["cannot read", "\"missing.csv\"", "no such file"],
+        ),
         ("bad.csv", vec!["\"bad.csv\"", "line 3"]),
-        ("decreasing.csv", vec!["\"decreasing.csv\"", "increasing in B"]),
+        (
+            "decreasing.csv",
+            vec!["\"decreasing.csv\"", "increasing in B"],
+        ),
     ] {
-        let text = format!("[materials.iron]\nbh_curve_file = \"{file}\"\n{SQUARE}material = \"iron\"\n");
-        let e = Model::from_toml_str_with_files(&text, &ModelSource::new(FILE), &loader).expect_err("bad file");
-        let hit = e.errors.iter().find(|x| needles.iter().all(|n| x.what.contains(n)));
+        let text =
+            format!("[materials.iron]\nbh_curve_file = \"{file}\"\n{SQUARE}material = \"iron\"\n");
+        let e = Model::from_toml_str_with_files(&text, &ModelSource::new(FILE), &loader)
+            .expect_err("bad file");
+        let hit = e
+            .errors
+            .iter()
+            .find(|x| needles.iter().all(|n| x.what.contains(n)));
         let hit = hit.unwrap_or_else(|| panic!("{needles:?} not in {e}"));
         assert_eq!(hit.line, Some(2), "{hit}");
         assert!(hit.what.contains("[materials.iron]"), "{hit}");
@@ -304,15 +499,32 @@ fn bh_curve_file_problems() {
 
 #[test]
 fn model_without_shapes() {
-    check("[model]\ntitle = \"empty\"\n", ErrorKind::MissingKey, None, &["no shapes"]);
-    check("[[shape]]\nname = \"x\"\nmaterial = \"air\"\n", ErrorKind::MissingKey, Some(1), &["shape `x`", "no outline"]);
+    check(
+        "[model]\ntitle = \"empty\"\n",
+        ErrorKind::MissingKey,
+        None,
+        &["no shapes"],
+    );
+    check(
+        "[[shape]]\nname = \"x\"\nmaterial = \"air\"\n",
+        ErrorKind::MissingKey,
+        Some(1),
+        &["shape `x`", "no outline"],
+    );
 }
 
 #[test]
 fn duplicate_names() {
-    check(&format!("{SQUARE}{SQUARE}"), ErrorKind::DuplicateName, Some(5), &["`sq`", "shape #1"]);
     check(
-        &format!("{SQUARE}[[probe]]\nname = \"p\"\nat = [1, 1]\n[[probe]]\nname = \"p\"\nat = [2, 2]\n"),
+        &format!("{SQUARE}{SQUARE}"),
+        ErrorKind::DuplicateName,
+        Some(5),
+        &["`sq`", "shape #1"],
+    );
+    check(
+        &format!(
+            "{SQUARE}[[probe]]\nname = \"p\"\nat = [1, 1]\n[[probe]]\nname = \"p\"\nat = [2, 2]\n"
+        ),
         ErrorKind::DuplicateName,
         Some(8),
         &["[[probe]]", "`p`"],
@@ -322,7 +534,9 @@ fn duplicate_names() {
 #[test]
 fn winding_and_current_together() {
     check(
-        &format!("[windings.coil]\nturns = 10\ncurrent = 1\n{SQUARE}winding = \"coil\"\ncurrent = 5\n"),
+        &format!(
+            "[windings.coil]\nturns = 10\ncurrent = 1\n{SQUARE}winding = \"coil\"\ncurrent = 5\n"
+        ),
         ErrorKind::Conflict,
         Some(8),
         &["shape `sq`", "both `winding` and `current`"],
@@ -333,7 +547,11 @@ fn winding_and_current_together() {
 fn one_sided_planar_winding_is_a_warning() {
     let text = format!("[windings.coil]\nturns = 10\ncurrent = 1\n{SQUARE}winding = \"coil\"\n");
     let m = Model::from_toml_str(&text, &ModelSource::new(FILE)).expect("a warning, not an error");
-    let w = m.warnings.iter().find(|w| w.what.contains("winding `coil`")).expect("warned");
+    let w = m
+        .warnings
+        .iter()
+        .find(|w| w.what.contains("winding `coil`"))
+        .expect("warned");
     assert!(w.what.contains("only a go (+1) side"), "{w}");
     assert_eq!(w.line, Some(1));
     assert!(w.to_string().starts_with(FILE));
@@ -345,22 +563,41 @@ fn one_sided_planar_winding_is_a_warning() {
 
 #[test]
 fn outer_condition_problems() {
-    check(&format!("{SQUARE}[outer]\ncondition = \"uniform-field\"\n"), ErrorKind::MissingKey, Some(4), &["[outer]", "`field`"]);
-    check(&format!("{SQUARE}[outer]\ncondition = \"flux-normall\"\n"), ErrorKind::OutOfRange, Some(5), &["`condition`", "did you mean `flux-normal`"]);
     check(
-        &format!("{SQUARE}[outer]\nshape = {{ rectangle = {{ min = [-5, -5], max = [15, 15] }} }}\n"),
+        &format!("{SQUARE}[outer]\ncondition = \"uniform-field\"\n"),
+        ErrorKind::MissingKey,
+        Some(4),
+        &["[outer]", "`field`"],
+    );
+    check(
+        &format!("{SQUARE}[outer]\ncondition = \"flux-normall\"\n"),
+        ErrorKind::OutOfRange,
+        Some(5),
+        &["`condition`", "did you mean `flux-normal`"],
+    );
+    check(
+        &format!(
+            "{SQUARE}[outer]\nshape = {{ rectangle = {{ min = [-5, -5], max = [15, 15] }} }}\n"
+        ),
         ErrorKind::Conflict,
         Some(5),
         &["\"open\"", "circular"],
     );
-    check(&format!("{SQUARE}[outer]\nfield = [0, 1]\n"), ErrorKind::Conflict, Some(5), &["`field`", "uniform-field"]);
+    check(
+        &format!("{SQUARE}[outer]\nfield = [0, 1]\n"),
+        ErrorKind::Conflict,
+        Some(5),
+        &["`field`", "uniform-field"],
+    );
 }
 
 #[test]
 fn edge_problems() {
     let outer = "[outer]\nshape = { rectangle = { min = [-5, -5], max = [15, 15] } }\ncondition = \"zero-potential\"\n";
     check(
-        &format!("{SQUARE}{outer}[[edge]]\nfrom = [-5, -5]\nto = [15, -5]\ncondition = \"periodic\"\n"),
+        &format!(
+            "{SQUARE}{outer}[[edge]]\nfrom = [-5, -5]\nto = [15, -5]\ncondition = \"periodic\"\n"
+        ),
         ErrorKind::MissingKey,
         Some(7),
         &["[[edge]] #1", "`partner`"],
@@ -381,7 +618,12 @@ fn edge_problems() {
 
 #[test]
 fn sweep_problems() {
-    check(&format!("{SQUARE}[sweep]\n"), ErrorKind::Conflict, Some(4), &["[sweep]", "exactly one"]);
+    check(
+        &format!("{SQUARE}[sweep]\n"),
+        ErrorKind::Conflict,
+        Some(4),
+        &["[sweep]", "exactly one"],
+    );
     check(
         &format!("{SQUARE}[sweep]\nmove = {{ shapes = [\"sq\"], along = [1, 0], from = 0, to = 1, steps = 1 }}\nturn = {{ shapes = [\"sq\"], from = 0, to = 1, steps = 1 }}\n"),
         ErrorKind::Conflict,

@@ -14,8 +14,8 @@ const GOOD: [&str; 4] = [
 /// Characters that matter to TOML and to the format, plus digits and
 /// letters, so that mutations often stay parseable and reach the checks.
 const ALPHABET: &[char] = &[
-    '[', ']', '{', '}', '=', ',', '"', '.', '-', '+', '\n', ' ', '#', '0', '1', '2', '5', '9', 'e', 'a', 'n', 'i', 'f',
-    'x', '_', 'μ',
+    '[', ']', '{', '}', '=', ',', '"', '.', '-', '+', '\n', ' ', '#', '0', '1', '2', '5', '9', 'e',
+    'a', 'n', 'i', 'f', 'x', '_', 'μ',
 ];
 
 fn check_no_panic(text: &str) {
@@ -38,11 +38,23 @@ fn check_no_panic(text: &str) {
 
 #[derive(Debug, Clone)]
 enum Edit {
-    Delete { at: usize, len: usize },
-    Insert { at: usize, c: char },
-    Replace { at: usize, c: char },
+    Delete {
+        at: usize,
+        len: usize,
+    },
+    Insert {
+        at: usize,
+        c: char,
+    },
+    Replace {
+        at: usize,
+        c: char,
+    },
     /// Replace a number-looking character run with another number.
-    Number { at: usize, value: f64 },
+    Number {
+        at: usize,
+        value: f64,
+    },
 }
 
 fn apply(text: &str, edits: &[Edit]) -> String {
@@ -85,7 +97,8 @@ fn edit() -> impl Strategy<Value = Edit> {
     prop_oneof![
         (any::<usize>(), 1usize..20).prop_map(|(at, len)| Edit::Delete { at, len }),
         (any::<usize>(), prop::sample::select(ALPHABET)).prop_map(|(at, c)| Edit::Insert { at, c }),
-        (any::<usize>(), prop::sample::select(ALPHABET)).prop_map(|(at, c)| Edit::Replace { at, c }),
+        (any::<usize>(), prop::sample::select(ALPHABET))
+            .prop_map(|(at, c)| Edit::Replace { at, c }),
         (
             any::<usize>(),
             prop_oneof![

@@ -2,8 +2,8 @@
 //! the example models under tests/models/good/.
 
 use fluxwright_solver::model::{
-    EdgeKind, Excitation, ForceMethod, LengthUnit, Model, ModelSource, OutlineSpec, OuterCondition, Permeability, Sweep,
-    Symmetry,
+    EdgeKind, Excitation, ForceMethod, LengthUnit, Model, ModelSource, OuterCondition, OutlineSpec,
+    Permeability, Sweep, Symmetry,
 };
 
 fn parse(text: &str) -> Model {
@@ -18,7 +18,12 @@ fn close(a: f64, b: f64, tol: f64) -> bool {
 }
 
 fn centroid_of_box(m: &Model, name: &str) -> [f64; 2] {
-    let (i, _) = m.shapes.iter().enumerate().find(|(_, s)| s.name == name).expect("shape exists");
+    let (i, _) = m
+        .shapes
+        .iter()
+        .enumerate()
+        .find(|(_, s)| s.name == name)
+        .expect("shape exists");
     let (lo, hi) = m.shapes[i].outline.bounding_box();
     [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])]
 }
@@ -79,11 +84,20 @@ fn minimal_model_gets_the_documented_defaults() {
 #[test]
 fn length_units_convert_to_metres() {
     // Exact definitions: 1 in = 25.4 mm (international inch, 1959); SI prefixes.
-    for (unit, to_m) in [("m", 1.0), ("cm", 0.01), ("mm", 0.001), ("um", 1e-6), ("in", 0.0254)] {
+    for (unit, to_m) in [
+        ("m", 1.0),
+        ("cm", 0.01),
+        ("mm", 0.001),
+        ("um", 1e-6),
+        ("in", 0.0254),
+    ] {
         let text = format!("[model]\nlength_unit = \"{unit}\"\ndepth = 2\n{MINIMAL}");
         let m = parse(&text);
         assert!(close(m.unit_to_m(), to_m, 1e-15), "{unit}");
-        assert!(close(m.depth_m().expect("planar"), 2.0 * to_m, 1e-15), "{unit}");
+        assert!(
+            close(m.depth_m().expect("planar"), 2.0 * to_m, 1e-15),
+            "{unit}"
+        );
         // Coordinates stay in model units.
         assert_eq!(m.shapes[0].outline.bounding_box().1, [40.0, 10.0]);
     }
@@ -108,8 +122,14 @@ rotate_about = [0, 0]
     // Moved to x 3..5, y 0..1, then turned 90° about the origin:
     // (x, y) -> (-y, x), so x -1..0, y 3..5.
     let (lo, hi) = m.shapes[0].outline.bounding_box();
-    assert!(close(lo[0], -1.0, 1e-9) && close(hi[0], 0.0, 1e-9), "{lo:?} {hi:?}");
-    assert!(close(lo[1], 3.0, 1e-9) && close(hi[1], 5.0, 1e-9), "{lo:?} {hi:?}");
+    assert!(
+        close(lo[0], -1.0, 1e-9) && close(hi[0], 0.0, 1e-9),
+        "{lo:?} {hi:?}"
+    );
+    assert!(
+        close(lo[1], 3.0, 1e-9) && close(hi[1], 5.0, 1e-9),
+        "{lo:?} {hi:?}"
+    );
     // Area is kept (2 × 1).
     assert!(close(m.shapes[0].outline.area(), 2.0, 1e-12));
 }
@@ -144,14 +164,29 @@ shapes = ["pole"]
 "#,
     );
     let names: Vec<&str> = m.shapes.iter().map(|s| s.name.as_str()).collect();
-    assert_eq!(names, ["pole[0]", "pole[1]", "pole[2]", "pole[3]", "tooth[0]", "tooth[1]", "tooth[2]", "tooth[3]"]);
+    assert_eq!(
+        names,
+        [
+            "pole[0]", "pole[1]", "pole[2]", "pole[3]", "tooth[0]", "tooth[1]", "tooth[2]",
+            "tooth[3]"
+        ]
+    );
     // Copy k turned by k·90° about the origin: centres (10,0), (0,10), (-10,0), (0,-10).
-    for (k, c) in [[10.0, 0.0], [0.0, 10.0], [-10.0, 0.0], [0.0, -10.0]].iter().enumerate() {
+    for (k, c) in [[10.0, 0.0], [0.0, 10.0], [-10.0, 0.0], [0.0, -10.0]]
+        .iter()
+        .enumerate()
+    {
         let got = centroid_of_box(&m, &format!("pole[{k}]"));
-        assert!(close(got[0], c[0], 1e-9) && close(got[1], c[1], 1e-9), "pole[{k}] at {got:?}");
+        assert!(
+            close(got[0], c[0], 1e-9) && close(got[1], c[1], 1e-9),
+            "pole[{k}] at {got:?}"
+        );
     }
     // Magnetization turns with the copy, plus 180° on odd copies.
-    let angles: Vec<f64> = m.shapes[..4].iter().map(|s| s.magnetization_angle_deg).collect();
+    let angles: Vec<f64> = m.shapes[..4]
+        .iter()
+        .map(|s| s.magnetization_angle_deg)
+        .collect();
     assert_eq!(angles, [0.0, 270.0, 180.0, 450.0]);
     // Winding direction flips on odd copies; `angle` defaults to 360/count.
     let dirs: Vec<f64> = m.shapes[4..]
@@ -240,7 +275,8 @@ bh_curve_file = "curves/steel.csv"
 rectangle = { min = [0, 0], max = [1, 1] }
 material = "steel"
 "#;
-    let m = Model::from_toml_str_with_files(text, &ModelSource::new("m.toml"), &loader).expect("parses");
+    let m = Model::from_toml_str_with_files(text, &ModelSource::new("m.toml"), &loader)
+        .expect("parses");
     let (_, steel) = m.material("steel").expect("defined");
     match &steel.permeability {
         Permeability::Curve(c) => {
@@ -264,7 +300,13 @@ rectangle = { min = [0, -10], max = [6, 20] }
     );
     assert_eq!(m.depth_m(), None);
     match m.outer.spec {
-        OutlineSpec::Sector { center, inner_radius, outer_radius, start_angle_deg, end_angle_deg } => {
+        OutlineSpec::Sector {
+            center,
+            inner_radius,
+            outer_radius,
+            start_angle_deg,
+            end_angle_deg,
+        } => {
             assert_eq!(center, [0.0, 5.0]);
             assert_eq!(inner_radius, 0.0);
             // 3 × the reach from (0, 5) to the far corner (6, ±15).
@@ -277,7 +319,11 @@ rectangle = { min = [0, -10], max = [6, 20] }
     assert!(lo[0] >= -1e-9, "the outer stays in x ≥ 0: {lo:?}");
     // Half-disc area ½πR².
     let r = 3.0 * 6f64.hypot(15.0);
-    assert!(close(m.outer.outline.area(), 0.5 * std::f64::consts::PI * r * r, 1e-9));
+    assert!(close(
+        m.outer.outline.area(),
+        0.5 * std::f64::consts::PI * r * r,
+        1e-9
+    ));
 }
 
 #[test]
@@ -300,11 +346,20 @@ condition = "anti-periodic"
 partner = { from = [3.5355339059327378, 3.5355339059327373], to = [21.213203435596427, 21.213203435596423] }
 "#,
     );
-    assert_eq!(m.outer.condition, OuterCondition::UniformField { field_t: [0.0, 0.5] });
+    assert_eq!(
+        m.outer.condition,
+        OuterCondition::UniformField {
+            field_t: [0.0, 0.5]
+        }
+    );
     assert!(matches!(m.edges[0].kind, EdgeKind::AntiPeriodic { .. }));
     // Annular sector area ½·θ·(R² − r²) with θ = 25° (shape) and 45° (outer).
     let area = |deg: f64, r: f64, rr: f64| 0.5 * deg.to_radians() * (rr * rr - r * r);
-    assert!(close(m.shapes[0].outline.area(), area(25.0, 10.0, 20.0), 1e-12));
+    assert!(close(
+        m.shapes[0].outline.area(),
+        area(25.0, 10.0, 20.0),
+        1e-12
+    ));
     assert!(close(m.outer.outline.area(), area(45.0, 5.0, 30.0), 1e-12));
 }
 
@@ -314,7 +369,14 @@ fn sweep_values_include_both_ends() {
         "{MINIMAL}\n[windings.w]\nturns = 5\n[[shape]]\nrectangle = {{ min = [0, 12], max = [4, 14] }}\nwinding = \"w\"\ndirection = 1\n[[shape]]\nrectangle = {{ min = [6, 12], max = [10, 14] }}\nwinding = \"w\"\ndirection = -1\n[sweep]\ncurrent = {{ winding = \"w\", from = 0, to = 2, steps = 4 }}\n"
     ));
     let sweep = m.sweep.as_ref().expect("sweep");
-    assert!(matches!(sweep, Sweep::Current { winding: 0, steps: 4, .. }));
+    assert!(matches!(
+        sweep,
+        Sweep::Current {
+            winding: 0,
+            steps: 4,
+            ..
+        }
+    ));
     assert_eq!(sweep.values(), vec![0.0, 0.5, 1.0, 1.5, 2.0]);
     // A swept winding without `current` is not warned about.
     assert!(m.warnings.is_empty(), "{:?}", m.warnings);
@@ -322,7 +384,9 @@ fn sweep_values_include_both_ends() {
 
 #[test]
 fn mesh_input_matches_the_shapes() {
-    let m = parse(&format!("[mesh]\nmax_size = 3\nmin_angle = 30\ngrowth = 1.2\n{MINIMAL}"));
+    let m = parse(&format!(
+        "[mesh]\nmax_size = 3\nmin_angle = 30\ngrowth = 1.2\n{MINIMAL}"
+    ));
     let input = m.mesh_input();
     assert_eq!(input.shapes.len(), m.shapes.len());
     assert_eq!(input.shapes[0].mesh_size, 3.0);
@@ -342,22 +406,35 @@ fn example(name: &str, text: &str) -> Model {
 
 #[test]
 fn door_holding_magnet_example() {
-    let m = example("door_holding_magnet.toml", include_str!("../../tests/models/good/door_holding_magnet.toml"));
+    let m = example(
+        "door_holding_magnet.toml",
+        include_str!("../../tests/models/good/door_holding_magnet.toml"),
+    );
     assert!(m.warnings.is_empty(), "{:?}", m.warnings);
     let summary = m.summary();
     assert_eq!(summary.depth_m, Some(0.02));
-    let core = summary.shapes.iter().find(|r| r.name == "core").expect("core row");
+    let core = summary
+        .shapes
+        .iter()
+        .find(|r| r.name == "core")
+        .expect("core row");
     // U-core: 40 × 20 block less the 24 × 14 slot = 800 − 336 = 464 mm².
     assert!(close(core.area, 464.0, 1e-12));
     let coil = &summary.windings[0];
     assert_eq!(coil.shapes, vec!["coil_go (+1)", "coil_return (-1)"]);
     assert_eq!(m.forces[0].shapes, vec![3]);
-    assert!(summary.materials.iter().any(|r| r.name == "core_steel" && r.kind.starts_with("B-H curve")));
+    assert!(summary
+        .materials
+        .iter()
+        .any(|r| r.name == "core_steel" && r.kind.starts_with("B-H curve")));
 }
 
 #[test]
 fn gapped_choke_example() {
-    let m = example("gapped_choke.toml", include_str!("../../tests/models/good/gapped_choke.toml"));
+    let m = example(
+        "gapped_choke.toml",
+        include_str!("../../tests/models/good/gapped_choke.toml"),
+    );
     assert!(m.warnings.is_empty(), "{:?}", m.warnings);
     assert_eq!(m.outer.condition, OuterCondition::ZeroPotential);
     let gap = &m.shapes[3];
@@ -373,7 +450,10 @@ fn gapped_choke_example() {
 
 #[test]
 fn axisymmetric_plunger_example() {
-    let m = example("axisymmetric_plunger.toml", include_str!("../../tests/models/good/axisymmetric_plunger.toml"));
+    let m = example(
+        "axisymmetric_plunger.toml",
+        include_str!("../../tests/models/good/axisymmetric_plunger.toml"),
+    );
     assert!(m.warnings.is_empty(), "{:?}", m.warnings);
     assert_eq!(m.symmetry, Symmetry::Axisymmetric);
     assert!(matches!(m.outer.spec, OutlineSpec::Sector { .. }));
@@ -389,11 +469,21 @@ fn axisymmetric_plunger_example() {
 
 #[test]
 fn busbar_pair_example() {
-    let m = example("busbar_pair.toml", include_str!("../../tests/models/good/busbar_pair.toml"));
+    let m = example(
+        "busbar_pair.toml",
+        include_str!("../../tests/models/good/busbar_pair.toml"),
+    );
     assert!(m.warnings.is_empty(), "{:?}", m.warnings);
     assert_eq!(m.shapes[0].excitation, Excitation::Current { amps: 1000.0 });
-    assert_eq!(m.shapes[1].excitation, Excitation::Current { amps: -1000.0 });
+    assert_eq!(
+        m.shapes[1].excitation,
+        Excitation::Current { amps: -1000.0 }
+    );
     // Circle loop of radius 23: area π·23².
-    assert!(close(m.loops[0].outline.area(), std::f64::consts::PI * 23.0 * 23.0, 1e-12));
+    assert!(close(
+        m.loops[0].outline.area(),
+        std::f64::consts::PI * 23.0 * 23.0,
+        1e-12
+    ));
     assert_eq!(m.summary().shapes[0].source, "1000 A");
 }

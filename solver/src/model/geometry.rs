@@ -60,12 +60,20 @@ fn orient(a: Point, b: Point, c: Point) -> f64 {
 }
 
 fn on_segment(a: Point, b: Point, p: Point) -> bool {
-    p[0] >= a[0].min(b[0]) && p[0] <= a[0].max(b[0]) && p[1] >= a[1].min(b[1]) && p[1] <= a[1].max(b[1])
+    p[0] >= a[0].min(b[0])
+        && p[0] <= a[0].max(b[0])
+        && p[1] >= a[1].min(b[1])
+        && p[1] <= a[1].max(b[1])
 }
 
 /// A point shared by closed segments ab and cd, if any.
 fn segments_meet(a: Point, b: Point, c: Point, d: Point) -> Option<Point> {
-    let (o1, o2, o3, o4) = (orient(a, b, c), orient(a, b, d), orient(c, d, a), orient(c, d, b));
+    let (o1, o2, o3, o4) = (
+        orient(a, b, c),
+        orient(a, b, d),
+        orient(c, d, a),
+        orient(c, d, b),
+    );
     if o1 * o2 < 0.0 && o3 * o4 < 0.0 {
         let t = o3 / (o3 - o4);
         return Some([a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1])]);
@@ -82,7 +90,12 @@ fn segments_meet(a: Point, b: Point, c: Point, d: Point) -> Option<Point> {
 pub(crate) fn distance_to_segment(s: &Segment, p: Point) -> f64 {
     match *s {
         Segment::Line { from, to } => distance_to_line_piece(from, to, p),
-        Segment::Arc { center, radius, start, sweep } => {
+        Segment::Arc {
+            center,
+            radius,
+            start,
+            sweep,
+        } => {
             let d = sub(p, center);
             let r = d[0].hypot(d[1]);
             let angle = d[1].atan2(d[0]);
@@ -116,13 +129,22 @@ fn angle_on_arc(a: f64, start: f64, sweep: f64) -> bool {
     if sweep.abs() >= tau - 1e-12 {
         return true;
     }
-    let (lo, len) = if sweep >= 0.0 { (start, sweep) } else { (start + sweep, -sweep) };
+    let (lo, len) = if sweep >= 0.0 {
+        (start, sweep)
+    } else {
+        (start + sweep, -sweep)
+    };
     (a - lo).rem_euclid(tau) <= len
 }
 
 /// Distance from `p` to the edge of `outline`.
 pub(crate) fn distance_to_edge(outline: &Outline, p: Point) -> f64 {
-    outline.loops.iter().flat_map(|l| l.segments.iter()).map(|s| distance_to_segment(s, p)).fold(f64::INFINITY, f64::min)
+    outline
+        .loops
+        .iter()
+        .flat_map(|l| l.segments.iter())
+        .map(|s| distance_to_segment(s, p))
+        .fold(f64::INFINITY, f64::min)
 }
 
 /// Whether `p` is inside `outline` or within `tol` of its edge.
@@ -146,7 +168,9 @@ pub(crate) fn sample_points(outline: &Outline) -> Vec<Point> {
 }
 
 /// Bounding box of several outlines; `None` when there are none.
-pub(crate) fn bounding_box<'a>(outlines: impl IntoIterator<Item = &'a Outline>) -> Option<(Point, Point)> {
+pub(crate) fn bounding_box<'a>(
+    outlines: impl IntoIterator<Item = &'a Outline>,
+) -> Option<(Point, Point)> {
     let mut lo = [f64::INFINITY; 2];
     let mut hi = [f64::NEG_INFINITY; 2];
     for o in outlines {
@@ -162,12 +186,17 @@ pub(crate) fn bounding_box<'a>(outlines: impl IntoIterator<Item = &'a Outline>) 
 /// Whether `a`-`b` lies along a straight segment of the outline's edge
 /// (both ends within `tol` of the same line segment).
 pub(crate) fn on_straight_edge(outline: &Outline, a: Point, b: Point, tol: f64) -> bool {
-    outline.loops.iter().flat_map(|l| l.segments.iter()).any(|s| match *s {
-        Segment::Line { from, to } => {
-            distance_to_line_piece(from, to, a) <= tol && distance_to_line_piece(from, to, b) <= tol
-        }
-        Segment::Arc { .. } => false,
-    })
+    outline
+        .loops
+        .iter()
+        .flat_map(|l| l.segments.iter())
+        .any(|s| match *s {
+            Segment::Line { from, to } => {
+                distance_to_line_piece(from, to, a) <= tol
+                    && distance_to_line_piece(from, to, b) <= tol
+            }
+            Segment::Arc { .. } => false,
+        })
 }
 
 #[cfg(test)]
@@ -186,14 +215,28 @@ mod tests {
     fn convex_and_concave_polygons_are_simple() {
         let square = [[0.0, 0.0], [1.0, 0.0], [1.0, 1.0], [0.0, 1.0]];
         assert_eq!(polygon_self_crossing(&square), None);
-        let l_shape = [[0.0, 0.0], [2.0, 0.0], [2.0, 1.0], [1.0, 1.0], [1.0, 2.0], [0.0, 2.0]];
+        let l_shape = [
+            [0.0, 0.0],
+            [2.0, 0.0],
+            [2.0, 1.0],
+            [1.0, 1.0],
+            [1.0, 2.0],
+            [0.0, 2.0],
+        ];
         assert_eq!(polygon_self_crossing(&l_shape), None);
     }
 
     #[test]
     fn touching_corner_and_spike_are_caught() {
         // Corner (1, 0) revisited: the outline touches itself there.
-        let touching = [[0.0, 0.0], [1.0, 0.0], [2.0, 0.0], [2.0, 1.0], [1.0, 0.0], [0.0, 1.0]];
+        let touching = [
+            [0.0, 0.0],
+            [1.0, 0.0],
+            [2.0, 0.0],
+            [2.0, 1.0],
+            [1.0, 0.0],
+            [0.0, 1.0],
+        ];
         assert!(polygon_self_crossing(&touching).is_some());
         let spike = [[0.0, 0.0], [2.0, 0.0], [1.0, 0.0], [1.0, 1.0]];
         assert!(polygon_self_crossing(&spike).is_some());

@@ -25,12 +25,15 @@ const FROM_MEMORY: &str = "typical values from memory; use the supplier's sheet"
 
 // Non-oriented silicon electrical steel, about 0.5 mm gauge: a generic
 // curve of the usual shape (knee near 1.3-1.5 T).
-const SILICON_STEEL_H: [f64; 11] = [0.0, 40.0, 60.0, 100.0, 200.0, 500.0, 1000.0, 2500.0, 5000.0, 10000.0, 50000.0];
+const SILICON_STEEL_H: [f64; 11] = [
+    0.0, 40.0, 60.0, 100.0, 200.0, 500.0, 1000.0, 2500.0, 5000.0, 10000.0, 50000.0,
+];
 const SILICON_STEEL_B: [f64; 11] = [0.0, 0.5, 0.8, 1.05, 1.25, 1.4, 1.48, 1.58, 1.67, 1.78, 2.02];
 
 // Low-carbon solid steel (plunger and frame grades).
-const LOW_CARBON_H: [f64; 11] =
-    [0.0, 100.0, 200.0, 400.0, 800.0, 1600.0, 3200.0, 6400.0, 12800.0, 50000.0, 100000.0];
+const LOW_CARBON_H: [f64; 11] = [
+    0.0, 100.0, 200.0, 400.0, 800.0, 1600.0, 3200.0, 6400.0, 12800.0, 50000.0, 100000.0,
+];
 const LOW_CARBON_B: [f64; 11] = [0.0, 0.3, 0.7, 1.05, 1.3, 1.5, 1.65, 1.78, 1.9, 2.05, 2.15];
 
 // Manganese-zinc power ferrite (initial μr about 2000, saturating near 0.5 T).
@@ -116,7 +119,11 @@ mod tests {
     #[test]
     fn library_curves_obey_the_format_rules() {
         for m in LIBRARY {
-            assert!(m.relative_permeability.is_some() != m.bh_curve.is_some(), "{}", m.name);
+            assert!(
+                m.relative_permeability.is_some() != m.bh_curve.is_some(),
+                "{}",
+                m.name
+            );
             if let Some((h, b)) = m.bh_curve {
                 assert_eq!(h.len(), b.len(), "{}", m.name);
                 assert_eq!((h[0], b[0]), (0.0, 0.0), "{}", m.name);
@@ -124,7 +131,11 @@ mod tests {
                     assert!(h[k] > h[k - 1] && b[k] > b[k - 1], "{} point {k}", m.name);
                     // Any ferromagnet's differential permeability stays above μ0
                     // (B = μ0 (H + M) with M non-decreasing): common practice, no source.
-                    assert!((b[k] - b[k - 1]) / (h[k] - h[k - 1]) > MU0, "{} segment {k}", m.name);
+                    assert!(
+                        (b[k] - b[k - 1]) / (h[k] - h[k - 1]) > MU0,
+                        "{} segment {k}",
+                        m.name
+                    );
                 }
             }
         }

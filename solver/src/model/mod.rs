@@ -45,9 +45,9 @@ pub use error::{ErrorKind, ModelError, ModelErrors, ModelWarning};
 pub use library::{library_material, library_materials, LibraryMaterial};
 pub use summary::{MaterialRow, ModelSummary, ShapeRow, WindingRow};
 pub use types::{
-    AmpereLoop, BhCurve, EdgeCondition, EdgeKind, Excitation, ForceMethod, ForceRequest, LengthUnit, Material,
-    MeshSettings, OutlineSpec, Outer, OuterCondition, Permeability, Probe, Profile, Shape, Sweep, Symmetry,
-    TorqueRequest, Winding,
+    AmpereLoop, BhCurve, EdgeCondition, EdgeKind, Excitation, ForceMethod, ForceRequest,
+    LengthUnit, Material, MeshSettings, Outer, OuterCondition, OutlineSpec, Permeability, Probe,
+    Profile, Shape, Sweep, Symmetry, TorqueRequest, Winding,
 };
 
 use fluxwright_mesher::{MeshInput, ShapeInput};
@@ -188,23 +188,40 @@ impl Model {
 
     /// The material called `name` (including `air`), with its index.
     pub fn material(&self, name: &str) -> Option<(usize, &Material)> {
-        self.materials.iter().enumerate().find(|(_, m)| m.name == name)
+        self.materials
+            .iter()
+            .enumerate()
+            .find(|(_, m)| m.name == name)
     }
 
     /// The winding called `name`, with its index.
     pub fn winding(&self, name: &str) -> Option<(usize, &Winding)> {
-        self.windings.iter().enumerate().find(|(_, w)| w.name == name)
+        self.windings
+            .iter()
+            .enumerate()
+            .find(|(_, w)| w.name == name)
     }
 
     /// Indices of the shapes a reference selects: the shape with that exact
     /// name, or every copy of a repeated shape given by its base name. Empty
     /// when nothing matches.
     pub fn shapes_named(&self, name: &str) -> Vec<usize> {
-        let exact: Vec<usize> = self.shapes.iter().enumerate().filter(|(_, s)| s.name == name).map(|(i, _)| i).collect();
+        let exact: Vec<usize> = self
+            .shapes
+            .iter()
+            .enumerate()
+            .filter(|(_, s)| s.name == name)
+            .map(|(i, _)| i)
+            .collect();
         if !exact.is_empty() {
             return exact;
         }
-        self.shapes.iter().enumerate().filter(|(_, s)| s.base_name == name).map(|(i, _)| i).collect()
+        self.shapes
+            .iter()
+            .enumerate()
+            .filter(|(_, s)| s.base_name == name)
+            .map(|(i, _)| i)
+            .collect()
     }
 
     /// Indices of the shapes holding turns of winding `winding` with the
@@ -232,7 +249,10 @@ impl Model {
             shapes: self
                 .shapes
                 .iter()
-                .map(|s| ShapeInput { outline: s.outline.clone(), mesh_size: s.mesh_size })
+                .map(|s| ShapeInput {
+                    outline: s.outline.clone(),
+                    mesh_size: s.mesh_size,
+                })
                 .collect(),
             max_size: self.mesh.max_size,
             min_angle_deg: self.mesh.min_angle_deg,

@@ -11,12 +11,31 @@ use super::suggest;
 use super::types::{BhCurve, ForceMethod, LengthUnit, OutlineSpec, Permeability, Symmetry};
 use super::FileLoader;
 
-pub(crate) const ROOT_KEYS: &[&str] =
-    &["model", "mesh", "materials", "windings", "shape", "outer", "edge", "probe", "profile", "loop", "force", "torque", "sweep"];
+pub(crate) const ROOT_KEYS: &[&str] = &[
+    "model",
+    "mesh",
+    "materials",
+    "windings",
+    "shape",
+    "outer",
+    "edge",
+    "probe",
+    "profile",
+    "loop",
+    "force",
+    "torque",
+    "sweep",
+];
 const MODEL_KEYS: &[&str] = &["title", "symmetry", "depth", "length_unit", "element_order"];
 const MESH_KEYS: &[&str] = &["max_size", "min_angle", "growth", "adapt", "target_error"];
-const MATERIAL_KEYS: &[&str] =
-    &["relative_permeability", "bh_curve", "bh_curve_file", "stacking_factor", "remanence", "from_library"];
+const MATERIAL_KEYS: &[&str] = &[
+    "relative_permeability",
+    "bh_curve",
+    "bh_curve_file",
+    "stacking_factor",
+    "remanence",
+    "from_library",
+];
 const BH_KEYS: &[&str] = &["h", "b"];
 const WINDING_KEYS: &[&str] = &["turns", "current"];
 pub(crate) const OUTLINE_KEYS: &[&str] = &["rectangle", "circle", "polygon", "sector"];
@@ -35,7 +54,13 @@ const SHAPE_OTHER_KEYS: &[&str] = &[
 ];
 const RECTANGLE_KEYS: &[&str] = &["min", "max"];
 const CIRCLE_KEYS: &[&str] = &["center", "radius"];
-const SECTOR_KEYS: &[&str] = &["center", "inner_radius", "outer_radius", "start_angle", "end_angle"];
+const SECTOR_KEYS: &[&str] = &[
+    "center",
+    "inner_radius",
+    "outer_radius",
+    "start_angle",
+    "end_angle",
+];
 const REPEAT_KEYS: &[&str] = &["count", "angle", "center", "alternate"];
 const OUTER_KEYS: &[&str] = &["shape", "condition", "field"];
 const EDGE_KEYS: &[&str] = &["from", "to", "condition", "partner"];
@@ -188,9 +213,26 @@ pub(crate) struct RawTorque {
 }
 
 pub(crate) enum RawSweep {
-    Current { winding: NameRef, from: f64, to: f64, steps: usize },
-    Move { shapes: Vec<NameRef>, along: Point, from: f64, to: f64, steps: usize },
-    Turn { shapes: Vec<NameRef>, center: Point, from: f64, to: f64, steps: usize },
+    Current {
+        winding: NameRef,
+        from: f64,
+        to: f64,
+        steps: usize,
+    },
+    Move {
+        shapes: Vec<NameRef>,
+        along: Point,
+        from: f64,
+        to: f64,
+        steps: usize,
+    },
+    Turn {
+        shapes: Vec<NameRef>,
+        center: Point,
+        from: f64,
+        to: f64,
+        steps: usize,
+    },
 }
 
 /// Everything read in the first pass. Items that failed are left out (their
@@ -223,7 +265,11 @@ fn ok<T>(f: Field<T>) -> Option<T> {
     f.ok().flatten()
 }
 
-pub(crate) fn read_model(ctx: &mut Ctx<'_>, root: &Section<'_>, loader: &dyn FileLoader) -> RawModel {
+pub(crate) fn read_model(
+    ctx: &mut Ctx<'_>,
+    root: &Section<'_>,
+    loader: &dyn FileLoader,
+) -> RawModel {
     ctx.check_keys(root, ROOT_KEYS);
     let header = read_header(ctx, root);
     let mesh = read_mesh(ctx, root);
@@ -232,7 +278,9 @@ pub(crate) fn read_model(ctx: &mut Ctx<'_>, root: &Section<'_>, loader: &dyn Fil
     let shape_sections = ctx.sections(root, "shape");
     // A `shape` key of the wrong type counts as a table, so that it is not
     // also reported as "no shapes".
-    let shape_tables = shape_sections.len().max(usize::from(root.table.contains_key("shape")));
+    let shape_tables = shape_sections
+        .len()
+        .max(usize::from(root.table.contains_key("shape")));
     let declared_shapes = shape_sections
         .iter()
         .enumerate()
@@ -244,7 +292,10 @@ pub(crate) fn read_model(ctx: &mut Ctx<'_>, root: &Section<'_>, loader: &dyn Fil
         })
         .collect();
     let declared = |key: &str| -> Vec<String> {
-        root.table.get(key).and_then(|i| i.as_table_like()).map_or_else(Vec::new, |t| t.iter().map(|(k, _)| k.to_string()).collect())
+        root.table
+            .get(key)
+            .and_then(|i| i.as_table_like())
+            .map_or_else(Vec::new, |t| t.iter().map(|(k, _)| k.to_string()).collect())
     };
     let (declared_materials, declared_windings) = (declared("materials"), declared("windings"));
     let shapes = shape_sections
@@ -319,9 +370,16 @@ fn read_named<T>(
 /// of path separators and the `[` `]` used for repeat copies.
 fn check_name(ctx: &mut Ctx<'_>, name: &str, span: &Span, owner: &str) -> Result<(), Reported> {
     if name.trim().is_empty() {
-        return Err(ctx.error(ErrorKind::OutOfRange, span, format!("the name of {owner} is empty; give it a name")));
+        return Err(ctx.error(
+            ErrorKind::OutOfRange,
+            span,
+            format!("the name of {owner} is empty; give it a name"),
+        ));
     }
-    if let Some(c) = name.chars().find(|c| c.is_control() || matches!(c, '/' | '\\' | '[' | ']' | '"')) {
+    if let Some(c) = name
+        .chars()
+        .find(|c| c.is_control() || matches!(c, '/' | '\\' | '[' | ']' | '"'))
+    {
         return Err(ctx.error(
             ErrorKind::OutOfRange,
             span,
@@ -339,11 +397,17 @@ fn read_header(ctx: &mut Ctx<'_>, root: &Section<'_>) -> RawHeader {
         length_unit: LengthUnit::Millimetre,
         element_order: 2,
     };
-    let Some(sec) = ok(ctx.section(root, "model", "[model]".into())) else { return header };
+    let Some(sec) = ok(ctx.section(root, "model", "[model]".into())) else {
+        return header;
+    };
     ctx.check_keys(&sec, MODEL_KEYS);
     header.title = ok(ctx.string(&sec, "title")).map(str::to_string);
     if let Some(s) = ok(ctx.choice(&sec, "symmetry", &["planar", "axisymmetric"])) {
-        header.symmetry = if s == "planar" { Symmetry::Planar } else { Symmetry::Axisymmetric };
+        header.symmetry = if s == "planar" {
+            Symmetry::Planar
+        } else {
+            Symmetry::Axisymmetric
+        };
     }
     let units: Vec<&str> = LengthUnit::ALL.iter().map(|(_, s)| *s).collect();
     if let Some(u) = ok(ctx.choice(&sec, "length_unit", &units)) {
@@ -351,7 +415,12 @@ fn read_header(ctx: &mut Ctx<'_>, root: &Section<'_>) -> RawHeader {
             header.length_unit = *unit;
         }
     }
-    if let Some(d) = ok(ctx.number_where(&sec, "depth", |d| d > 0.0, "must be > 0 (the out-of-plane length)")) {
+    if let Some(d) = ok(ctx.number_where(
+        &sec,
+        "depth",
+        |d| d > 0.0,
+        "must be > 0 (the out-of-plane length)",
+    )) {
         header.depth = Some((d, ctx.span_of(&sec, "depth")));
     }
     if let Some(order) = ok(ctx.integer(&sec, "element_order", 1, 2)) {
@@ -361,7 +430,9 @@ fn read_header(ctx: &mut Ctx<'_>, root: &Section<'_>) -> RawHeader {
 }
 
 fn read_mesh(ctx: &mut Ctx<'_>, root: &Section<'_>) -> RawMesh {
-    let Some(sec) = ok(ctx.section(root, "mesh", "[mesh]".into())) else { return RawMesh::default() };
+    let Some(sec) = ok(ctx.section(root, "mesh", "[mesh]".into())) else {
+        return RawMesh::default();
+    };
     ctx.check_keys(&sec, MESH_KEYS);
     RawMesh {
         max_size: ok(ctx.number_where(&sec, "max_size", |x| x > 0.0, "must be > 0")),
@@ -373,7 +444,12 @@ fn read_mesh(ctx: &mut Ctx<'_>, root: &Section<'_>) -> RawMesh {
             |x| x > 0.0 && x <= 34.0,
             "must be in (0, 34] degrees (above about 34° refinement may never end)",
         )),
-        growth: ok(ctx.number_where(&sec, "growth", |x| x > 1.0, "must be > 1 (a ratio of sizes per element)")),
+        growth: ok(ctx.number_where(
+            &sec,
+            "growth",
+            |x| x > 1.0,
+            "must be > 1 (a ratio of sizes per element)",
+        )),
         adapt: ok(ctx.integer(&sec, "adapt", 0, MAX_ADAPT)).map(|n| n as u32),
         target_error: ok(ctx.number_where(
             &sec,
@@ -384,8 +460,14 @@ fn read_mesh(ctx: &mut Ctx<'_>, root: &Section<'_>) -> RawMesh {
     }
 }
 
-fn read_materials(ctx: &mut Ctx<'_>, root: &Section<'_>, loader: &dyn FileLoader) -> Vec<RawMaterial> {
-    let Some(all) = ok(ctx.section(root, "materials", "[materials]".into())) else { return Vec::new() };
+fn read_materials(
+    ctx: &mut Ctx<'_>,
+    root: &Section<'_>,
+    loader: &dyn FileLoader,
+) -> Vec<RawMaterial> {
+    let Some(all) = ok(ctx.section(root, "materials", "[materials]".into())) else {
+        return Vec::new();
+    };
     let mut out = Vec::new();
     let names: Vec<&str> = all.table.iter().map(|(k, _)| k).collect();
     for name in names {
@@ -412,7 +494,12 @@ fn read_materials(ctx: &mut Ctx<'_>, root: &Section<'_>, loader: &dyn FileLoader
     out
 }
 
-fn read_material(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: &str, loader: &dyn FileLoader) -> Option<RawMaterial> {
+fn read_material(
+    ctx: &mut Ctx<'_>,
+    sec: &Section<'_>,
+    name: &str,
+    loader: &dyn FileLoader,
+) -> Option<RawMaterial> {
     let unknown_keys = ctx.check_keys(sec, MATERIAL_KEYS);
     let mut bad = false;
     let library = match ctx.string(sec, "from_library") {
@@ -438,8 +525,10 @@ fn read_material(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: &str, loader: &dyn 
         Err(_) => return None,
     };
 
-    let given: Vec<&str> =
-        ["relative_permeability", "bh_curve", "bh_curve_file"].into_iter().filter(|k| sec.table.contains_key(k)).collect();
+    let given: Vec<&str> = ["relative_permeability", "bh_curve", "bh_curve_file"]
+        .into_iter()
+        .filter(|k| sec.table.contains_key(k))
+        .collect();
     if given.len() > 1 {
         let span = ctx.span_of(sec, given[1]);
         ctx.error(
@@ -454,8 +543,13 @@ fn read_material(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: &str, loader: &dyn 
     }
 
     let mut permeability = library.map(|m| match (m.relative_permeability, m.bh_curve) {
-        (_, Some((h, b))) => Permeability::Curve(BhCurve { h_a_per_m: h.to_vec(), b_t: b.to_vec() }),
-        (mu, None) => Permeability::Linear { relative: mu.unwrap_or(1.0) },
+        (_, Some((h, b))) => Permeability::Curve(BhCurve {
+            h_a_per_m: h.to_vec(),
+            b_t: b.to_vec(),
+        }),
+        (mu, None) => Permeability::Linear {
+            relative: mu.unwrap_or(1.0),
+        },
     });
     match ctx.number_where(
         sec,
@@ -556,18 +650,36 @@ fn read_bh_inline(ctx: &mut Ctx<'_>, sec: &Section<'_>) -> Option<BhCurve> {
     let (h, b) = match (h, b) {
         (Ok(Some(h)), Ok(Some(b))) => (h, b),
         (h, b) => {
-            for (key, f) in [("h", h.is_ok_and(|x| x.is_none())), ("b", b.is_ok_and(|x| x.is_none()))] {
+            for (key, f) in [
+                ("h", h.is_ok_and(|x| x.is_none())),
+                ("b", b.is_ok_and(|x| x.is_none())),
+            ] {
                 if f {
-                    ctx.missing(&curve, key, if key == "h" { " (H values in A/m)" } else { " (B values in T)" });
+                    ctx.missing(
+                        &curve,
+                        key,
+                        if key == "h" {
+                            " (H values in A/m)"
+                        } else {
+                            " (B values in T)"
+                        },
+                    );
                 }
             }
             return None;
         }
     };
     match check_bh(&h, &b) {
-        Ok(()) => Some(BhCurve { h_a_per_m: h, b_t: b }),
+        Ok(()) => Some(BhCurve {
+            h_a_per_m: h,
+            b_t: b,
+        }),
         Err(why) => {
-            ctx.error(ErrorKind::BhCurve, &curve.span, format!("the B-H curve of {} {why}", sec.label));
+            ctx.error(
+                ErrorKind::BhCurve,
+                &curve.span,
+                format!("the B-H curve of {} {why}", sec.label),
+            );
             None
         }
     }
@@ -583,21 +695,39 @@ fn read_bh_file(
     let text = match loader.read_to_string(path) {
         Ok(t) => t,
         Err(why) => {
-            ctx.error(ErrorKind::File, span, format!("{}: cannot read `bh_curve_file` \"{path}\": {why}", sec.label));
+            ctx.error(
+                ErrorKind::File,
+                span,
+                format!(
+                    "{}: cannot read `bh_curve_file` \"{path}\": {why}",
+                    sec.label
+                ),
+            );
             return None;
         }
     };
     let (h, b) = match parse_bh_csv(&text) {
         Ok(hb) => hb,
         Err(why) => {
-            ctx.error(ErrorKind::File, span, format!("{}: `bh_curve_file` \"{path}\" {why}", sec.label));
+            ctx.error(
+                ErrorKind::File,
+                span,
+                format!("{}: `bh_curve_file` \"{path}\" {why}", sec.label),
+            );
             return None;
         }
     };
     match check_bh(&h, &b) {
-        Ok(()) => Some(BhCurve { h_a_per_m: h, b_t: b }),
+        Ok(()) => Some(BhCurve {
+            h_a_per_m: h,
+            b_t: b,
+        }),
         Err(why) => {
-            ctx.error(ErrorKind::BhCurve, span, format!("the B-H curve in \"{path}\" ({}) {why}", sec.label));
+            ctx.error(
+                ErrorKind::BhCurve,
+                span,
+                format!("the B-H curve in \"{path}\" ({}) {why}", sec.label),
+            );
             None
         }
     }
@@ -614,8 +744,10 @@ pub(crate) fn parse_bh_csv(text: &str) -> Result<(Vec<f64>, Vec<f64>), String> {
         if line.is_empty() || line.starts_with('#') {
             continue;
         }
-        let fields: Vec<&str> =
-            line.split(|c: char| c == ',' || c == ';' || c.is_whitespace()).filter(|f| !f.is_empty()).collect();
+        let fields: Vec<&str> = line
+            .split(|c: char| c == ',' || c == ';' || c.is_whitespace())
+            .filter(|f| !f.is_empty())
+            .collect();
         let numbers: Option<Vec<f64>> = fields.iter().map(|f| f.parse::<f64>().ok()).collect();
         let is_first = std::mem::replace(&mut first_content, false);
         match numbers {
@@ -627,7 +759,12 @@ pub(crate) fn parse_bh_csv(text: &str) -> Result<(Vec<f64>, Vec<f64>), String> {
                 b.push(v[1]);
             }
             None if is_first => {} // header
-            _ => return Err(format!("line {}: expected two numbers `H, B`, found \"{line}\"", i + 1)),
+            _ => {
+                return Err(format!(
+                    "line {}: expected two numbers `H, B`, found \"{line}\"",
+                    i + 1
+                ))
+            }
         }
     }
     Ok((h, b))
@@ -636,13 +773,23 @@ pub(crate) fn parse_bh_csv(text: &str) -> Result<(Vec<f64>, Vec<f64>), String> {
 /// The format's rules for a B-H curve, as "must ..." text on failure.
 pub(crate) fn check_bh(h: &[f64], b: &[f64]) -> Result<(), String> {
     if h.len() != b.len() {
-        return Err(format!("has {} H values but {} B values; give one B per H", h.len(), b.len()));
+        return Err(format!(
+            "has {} H values but {} B values; give one B per H",
+            h.len(),
+            b.len()
+        ));
     }
     if h.len() < 2 {
-        return Err(format!("has {} point(s); give at least 2 (starting at H = 0, B = 0)", h.len()));
+        return Err(format!(
+            "has {} point(s); give at least 2 (starting at H = 0, B = 0)",
+            h.len()
+        ));
     }
     if h[0] != 0.0 || b[0] != 0.0 {
-        return Err(format!("must start at H = 0, B = 0, but starts at H = {}, B = {}", h[0], b[0]));
+        return Err(format!(
+            "must start at H = 0, B = 0, but starts at H = {}, B = {}",
+            h[0], b[0]
+        ));
     }
     for k in 1..h.len() {
         if !(h[k] > h[k - 1]) {
@@ -676,7 +823,9 @@ pub(crate) fn check_bh(h: &[f64], b: &[f64]) -> Result<(), String> {
 }
 
 fn read_windings(ctx: &mut Ctx<'_>, root: &Section<'_>) -> Vec<RawWinding> {
-    let Some(all) = ok(ctx.section(root, "windings", "[windings]".into())) else { return Vec::new() };
+    let Some(all) = ok(ctx.section(root, "windings", "[windings]".into())) else {
+        return Vec::new();
+    };
     let mut out = Vec::new();
     let names: Vec<&str> = all.table.iter().map(|(k, _)| k).collect();
     for name in names {
@@ -691,9 +840,12 @@ fn read_windings(ctx: &mut Ctx<'_>, root: &Section<'_>) -> Vec<RawWinding> {
         let turns = ctx.number_where(&sec, "turns", |n| n > 0.0, "must be > 0 (the series turns)");
         let current = ctx.number(&sec, "current");
         match (turns, current) {
-            (Ok(Some(turns)), Ok(current)) => {
-                out.push(RawWinding { name: name.to_string(), span: sec.span.clone(), turns, current })
-            }
+            (Ok(Some(turns)), Ok(current)) => out.push(RawWinding {
+                name: name.to_string(),
+                span: sec.span.clone(),
+                turns,
+                current,
+            }),
             (Ok(None), _) => {
                 ctx.missing(&sec, "turns", " (the series turns, > 0)");
             }
@@ -706,7 +858,11 @@ fn read_windings(ctx: &mut Ctx<'_>, root: &Section<'_>) -> Vec<RawWinding> {
 /// Exactly one outline key of `sec`, read into a spec. `what` names the
 /// owner in messages.
 pub(crate) fn read_outline(ctx: &mut Ctx<'_>, sec: &Section<'_>) -> Field<OutlineSpec> {
-    let present: Vec<&str> = OUTLINE_KEYS.iter().copied().filter(|k| sec.table.contains_key(k)).collect();
+    let present: Vec<&str> = OUTLINE_KEYS
+        .iter()
+        .copied()
+        .filter(|k| sec.table.contains_key(k))
+        .collect();
     match present.len() {
         0 => return Ok(None),
         1 => {}
@@ -724,18 +880,26 @@ pub(crate) fn read_outline(ctx: &mut Ctx<'_>, sec: &Section<'_>) -> Field<Outlin
     }
     let key = present[0];
     if key == "polygon" {
-        let Some(points) = ctx.points(sec, "polygon")? else { return Ok(None) };
+        let Some(points) = ctx.points(sec, "polygon")? else {
+            return Ok(None);
+        };
         if points.len() < 3 {
             let span = ctx.span_of(sec, "polygon");
             return Err(ctx.error(
                 ErrorKind::Geometry,
                 &span,
-                format!("the polygon of {} has {} corner(s); a polygon needs at least 3", sec.label, points.len()),
+                format!(
+                    "the polygon of {} has {} corner(s); a polygon needs at least 3",
+                    sec.label,
+                    points.len()
+                ),
             ));
         }
         return Ok(Some(OutlineSpec::Polygon(points)));
     }
-    let Some(sub) = ctx.section(sec, key, format!("`{key}` of {}", sec.label))? else { return Ok(None) };
+    let Some(sub) = ctx.section(sec, key, format!("`{key}` of {}", sec.label))? else {
+        return Ok(None);
+    };
     let need_point = |ctx: &mut Ctx<'_>, k: &str| -> Result<Point, Reported> {
         match ctx.point(&sub, k)? {
             Some(p) => Ok(p),
@@ -768,7 +932,10 @@ pub(crate) fn read_outline(ctx: &mut Ctx<'_>, sec: &Section<'_>) -> Field<Outlin
                 Ok(None) => Err(ctx.missing(&sub, "radius", " (> 0)")),
                 Err(e) => Err(e),
             };
-            Ok(Some(OutlineSpec::Circle { center: center?, radius: radius? }))
+            Ok(Some(OutlineSpec::Circle {
+                center: center?,
+                radius: radius?,
+            }))
         }
         _ => {
             ctx.check_keys(&sub, SECTOR_KEYS);
@@ -831,7 +998,11 @@ fn read_shape(ctx: &mut Ctx<'_>, mut sec: Section<'_>, index: usize) -> Option<R
         Ok(None) => (format!("shape-{index}"), sec.span.clone()),
         Err(_) => return None,
     };
-    let allowed: Vec<&str> = OUTLINE_KEYS.iter().chain(SHAPE_OTHER_KEYS).copied().collect();
+    let allowed: Vec<&str> = OUTLINE_KEYS
+        .iter()
+        .chain(SHAPE_OTHER_KEYS)
+        .copied()
+        .collect();
     ctx.check_keys(&sec, &allowed);
     let mut bad = false;
     let spec = match read_outline(ctx, &sec) {
@@ -865,7 +1036,10 @@ fn read_shape(ctx: &mut Ctx<'_>, mut sec: Section<'_>, index: usize) -> Option<R
             None
         }
     };
-    let mesh_size = take(ctx.number_where(&sec, "mesh_size", |h| h > 0.0, "must be > 0"), &mut bad);
+    let mesh_size = take(
+        ctx.number_where(&sec, "mesh_size", |h| h > 0.0, "must be > 0"),
+        &mut bad,
+    );
     let current = take(ctx.number(&sec, "current"), &mut bad);
     let direction = take(
         ctx.number_where(
@@ -877,8 +1051,8 @@ fn read_shape(ctx: &mut Ctx<'_>, mut sec: Section<'_>, index: usize) -> Option<R
         &mut bad,
     )
     .unwrap_or(1.0);
-    let magnetization_angle =
-        take(ctx.number(&sec, "magnetization_angle"), &mut bad).map(|a| (a, ctx.span_of(&sec, "magnetization_angle")));
+    let magnetization_angle = take(ctx.number(&sec, "magnetization_angle"), &mut bad)
+        .map(|a| (a, ctx.span_of(&sec, "magnetization_angle")));
     let rotate = take(ctx.number(&sec, "rotate"), &mut bad);
     let translate = match ctx.point(&sec, "translate") {
         Ok(p) => p,
@@ -937,14 +1111,20 @@ fn read_shape(ctx: &mut Ctx<'_>, mut sec: Section<'_>, index: usize) -> Option<R
 }
 
 fn read_repeat(ctx: &mut Ctx<'_>, sec: &Section<'_>) -> Field<RawRepeat> {
-    let Some(rep) = ctx.section(sec, "repeat", format!("`repeat` of {}", sec.label))? else { return Ok(None) };
+    let Some(rep) = ctx.section(sec, "repeat", format!("`repeat` of {}", sec.label))? else {
+        return Ok(None);
+    };
     ctx.check_keys(&rep, REPEAT_KEYS);
     let count = ctx.integer(&rep, "count", 1, MAX_REPEAT);
     let angle = ctx.number(&rep, "angle");
     let center = ctx.point(&rep, "center");
     let alternate = ctx.boolean(&rep, "alternate");
     let Some(count) = count? else {
-        return Err(ctx.missing(&rep, "count", " (the number of copies, counting the original)"));
+        return Err(ctx.missing(
+            &rep,
+            "count",
+            " (the number of copies, counting the original)",
+        ));
     };
     let count = count as usize;
     let angle = angle?.unwrap_or(360.0 / count as f64);
@@ -958,8 +1138,15 @@ fn read_repeat(ctx: &mut Ctx<'_>, sec: &Section<'_>) -> Field<RawRepeat> {
 }
 
 fn read_outer(ctx: &mut Ctx<'_>, root: &Section<'_>) -> RawOuter {
-    let mut outer = RawOuter { spec: None, span: None, condition: RawCondition::Open, field: None };
-    let Some(sec) = ok(ctx.section(root, "outer", "[outer]".into())) else { return outer };
+    let mut outer = RawOuter {
+        spec: None,
+        span: None,
+        condition: RawCondition::Open,
+        field: None,
+    };
+    let Some(sec) = ok(ctx.section(root, "outer", "[outer]".into())) else {
+        return outer;
+    };
     outer.span = sec.span.clone();
     ctx.check_keys(&sec, OUTER_KEYS);
     if let Some(shape) = ok(ctx.section(&sec, "shape", "`shape` of [outer]".into())) {
@@ -970,7 +1157,9 @@ fn read_outer(ctx: &mut Ctx<'_>, root: &Section<'_>) -> RawOuter {
                 outer.span = shape.span.clone();
             }
             Ok(None) => {
-                if shape.table.is_empty() || !OUTLINE_KEYS.iter().any(|k| shape.table.contains_key(k)) {
+                if shape.table.is_empty()
+                    || !OUTLINE_KEYS.iter().any(|k| shape.table.contains_key(k))
+                {
                     ctx.error(
                         ErrorKind::MissingKey,
                         &shape.span,
@@ -981,7 +1170,11 @@ fn read_outer(ctx: &mut Ctx<'_>, root: &Section<'_>) -> RawOuter {
             Err(_) => {}
         }
     }
-    let condition = ok(ctx.choice(&sec, "condition", &["open", "zero-potential", "flux-normal", "uniform-field"]));
+    let condition = ok(ctx.choice(
+        &sec,
+        "condition",
+        &["open", "zero-potential", "flux-normal", "uniform-field"],
+    ));
     outer.condition = match condition {
         Some("zero-potential") => RawCondition::ZeroPotential,
         Some("flux-normal") => RawCondition::FluxNormal,
@@ -989,9 +1182,17 @@ fn read_outer(ctx: &mut Ctx<'_>, root: &Section<'_>) -> RawOuter {
         _ => RawCondition::Open,
     };
     outer.field = ok(ctx.point(&sec, "field"));
-    match (&outer.condition, outer.field.is_some(), sec.table.contains_key("field")) {
+    match (
+        &outer.condition,
+        outer.field.is_some(),
+        sec.table.contains_key("field"),
+    ) {
         (RawCondition::UniformField, false, false) => {
-            ctx.missing(&sec, "field", " = [bx, by] (the applied flux density in T) for condition = \"uniform-field\"");
+            ctx.missing(
+                &sec,
+                "field",
+                " = [bx, by] (the applied flux density in T) for condition = \"uniform-field\"",
+            );
         }
         (RawCondition::UniformField, _, _) => {}
         (_, _, true) => {
@@ -1011,18 +1212,33 @@ fn read_edge(ctx: &mut Ctx<'_>, sec: &Section<'_>) -> Option<RawEdge> {
     ctx.check_keys(sec, EDGE_KEYS);
     let from = ctx.point(sec, "from");
     let to = ctx.point(sec, "to");
-    let condition = ctx.choice(sec, "condition", &["zero-potential", "flux-normal", "periodic", "anti-periodic"]);
+    let condition = ctx.choice(
+        sec,
+        "condition",
+        &["zero-potential", "flux-normal", "periodic", "anti-periodic"],
+    );
     let mut missing = false;
-    for (key, f) in [("from", from.is_ok_and(|p| p.is_none())), ("to", to.is_ok_and(|p| p.is_none()))] {
+    for (key, f) in [
+        ("from", from.is_ok_and(|p| p.is_none())),
+        ("to", to.is_ok_and(|p| p.is_none())),
+    ] {
         if f {
-            ctx.missing(sec, key, " = [x, y] (an end of a straight stretch of the outer edge)");
+            ctx.missing(
+                sec,
+                key,
+                " = [x, y] (an end of a straight stretch of the outer edge)",
+            );
             missing = true;
         }
     }
     let condition = match condition {
         Ok(Some(c)) => Some(c),
         Ok(None) => {
-            ctx.missing(sec, "condition", " (\"zero-potential\", \"flux-normal\", \"periodic\" or \"anti-periodic\")");
+            ctx.missing(
+                sec,
+                "condition",
+                " (\"zero-potential\", \"flux-normal\", \"periodic\" or \"anti-periodic\")",
+            );
             None
         }
         Err(_) => None,
@@ -1035,7 +1251,15 @@ fn read_edge(ctx: &mut Ctx<'_>, sec: &Section<'_>) -> Option<RawEdge> {
             match (pf, pt) {
                 (Ok(Some(a)), Ok(Some(b))) => Some(Some([a, b])),
                 (Ok(None), _) | (_, Ok(None)) => {
-                    ctx.missing(&p, if p.table.contains_key("from") { "to" } else { "from" }, " = [x, y]");
+                    ctx.missing(
+                        &p,
+                        if p.table.contains_key("from") {
+                            "to"
+                        } else {
+                            "from"
+                        },
+                        " = [x, y]",
+                    );
                     Some(None)
                 }
                 _ => Some(None),
@@ -1071,7 +1295,14 @@ fn read_edge(ctx: &mut Ctx<'_>, sec: &Section<'_>) -> Option<RawEdge> {
         ("zero-potential", None) => RawEdgeKind::ZeroPotential,
         _ => RawEdgeKind::FluxNormal,
     };
-    Some(RawEdge { label: sec.label.clone(), span: sec.span.clone(), from, to, kind, partner_span })
+    Some(RawEdge {
+        label: sec.label.clone(),
+        span: sec.span.clone(),
+        from,
+        to,
+        kind,
+        partner_span,
+    })
 }
 
 fn required_point(ctx: &mut Ctx<'_>, sec: &Section<'_>, key: &str) -> Option<Point> {
@@ -1087,7 +1318,10 @@ fn required_point(ctx: &mut Ctx<'_>, sec: &Section<'_>, key: &str) -> Option<Poi
 
 fn read_probe(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: NameRef) -> Option<RawProbe> {
     ctx.check_keys(sec, PROBE_KEYS);
-    Some(RawProbe { name, at: required_point(ctx, sec, "at")? })
+    Some(RawProbe {
+        name,
+        at: required_point(ctx, sec, "at")?,
+    })
 }
 
 fn read_profile(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: NameRef) -> Option<RawProfile> {
@@ -1099,10 +1333,22 @@ fn read_profile(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: NameRef) -> Option<R
     let samples = samples.ok()?.unwrap_or(201) as usize;
     if from == to {
         let span = ctx.span_of(sec, "to");
-        ctx.error(ErrorKind::Geometry, &span, format!("{} starts and ends at the same point; give a line", sec.label));
+        ctx.error(
+            ErrorKind::Geometry,
+            &span,
+            format!(
+                "{} starts and ends at the same point; give a line",
+                sec.label
+            ),
+        );
         return None;
     }
-    Some(RawProfile { name, from, to, samples })
+    Some(RawProfile {
+        name,
+        from,
+        to,
+        samples,
+    })
 }
 
 fn read_loop(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: NameRef) -> Option<RawLoop> {
@@ -1114,7 +1360,10 @@ fn read_loop(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: NameRef) -> Option<RawL
             ctx.error(
                 ErrorKind::MissingKey,
                 &sec.span,
-                format!("{} has no outline; give one of `rectangle`, `circle`, `polygon` or `sector`", sec.label),
+                format!(
+                    "{} has no outline; give one of `rectangle`, `circle`, `polygon` or `sector`",
+                    sec.label
+                ),
             );
             None
         }
@@ -1124,10 +1373,16 @@ fn read_loop(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: NameRef) -> Option<RawL
 
 fn required_names(ctx: &mut Ctx<'_>, sec: &Section<'_>, key: &str) -> Option<Vec<NameRef>> {
     match ctx.strings(sec, key) {
-        Ok(Some(v)) if !v.is_empty() => Some(v.into_iter().map(|(s, sp)| (s.to_string(), sp)).collect()),
+        Ok(Some(v)) if !v.is_empty() => {
+            Some(v.into_iter().map(|(s, sp)| (s.to_string(), sp)).collect())
+        }
         Ok(Some(_)) => {
             let span = ctx.span_of(sec, key);
-            ctx.error(ErrorKind::MissingKey, &span, format!("`{key}` in {} is empty; name at least one shape", sec.label));
+            ctx.error(
+                ErrorKind::MissingKey,
+                &span,
+                format!("`{key}` in {} is empty; name at least one shape", sec.label),
+            );
             None
         }
         Ok(None) => {
@@ -1146,25 +1401,42 @@ fn read_force(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: NameRef) -> Option<Raw
         Ok(_) => ForceMethod::StressTensor,
         Err(_) => return None,
     };
-    Some(RawForce { name, label: sec.label.clone(), shapes: shapes?, method })
+    Some(RawForce {
+        name,
+        label: sec.label.clone(),
+        shapes: shapes?,
+        method,
+    })
 }
 
 fn read_torque(ctx: &mut Ctx<'_>, sec: &Section<'_>, name: NameRef) -> Option<RawTorque> {
     ctx.check_keys(sec, TORQUE_KEYS);
     let shapes = required_names(ctx, sec, "shapes");
     let center = ctx.point(sec, "center").ok()?.unwrap_or([0.0, 0.0]);
-    Some(RawTorque { name, label: sec.label.clone(), shapes: shapes?, center })
+    Some(RawTorque {
+        name,
+        label: sec.label.clone(),
+        shapes: shapes?,
+        center,
+    })
 }
 
 fn read_sweep(ctx: &mut Ctx<'_>, root: &Section<'_>) -> Option<(RawSweep, Span)> {
     let sec = ok(ctx.section(root, "sweep", "[sweep]".into()))?;
     ctx.check_keys(&sec, SWEEP_KEYS);
-    let present: Vec<&str> = SWEEP_KEYS.iter().copied().filter(|k| sec.table.contains_key(k)).collect();
+    let present: Vec<&str> = SWEEP_KEYS
+        .iter()
+        .copied()
+        .filter(|k| sec.table.contains_key(k))
+        .collect();
     if present.len() != 1 {
         let what = if present.is_empty() {
             "[sweep] sweeps nothing; give exactly one of `current`, `move` or `turn`".to_string()
         } else {
-            format!("[sweep] gives {}; give exactly one of `current`, `move` or `turn`", present.join(" and "))
+            format!(
+                "[sweep] gives {}; give exactly one of `current`, `move` or `turn`",
+                present.join(" and ")
+            )
         };
         ctx.error(ErrorKind::Conflict, &sec.span, what);
         return None;
@@ -1200,12 +1472,21 @@ fn read_sweep(ctx: &mut Ctx<'_>, root: &Section<'_>) -> Option<(RawSweep, Span)>
             let winding = match ctx.string(&sub, "winding") {
                 Ok(Some(w)) => Some((w.to_string(), ctx.span_of(&sub, "winding"))),
                 Ok(None) => {
-                    ctx.missing(&sub, "winding", " (the name of the winding whose current is swept)");
+                    ctx.missing(
+                        &sub,
+                        "winding",
+                        " (the name of the winding whose current is swept)",
+                    );
                     None
                 }
                 Err(_) => None,
             };
-            RawSweep::Current { winding: winding?, from: from?, to: to?, steps: steps? }
+            RawSweep::Current {
+                winding: winding?,
+                from: from?,
+                to: to?,
+                steps: steps?,
+            }
         }
         "move" => {
             let shapes = required_names(ctx, &sub, "shapes");
@@ -1213,15 +1494,31 @@ fn read_sweep(ctx: &mut Ctx<'_>, root: &Section<'_>) -> Option<(RawSweep, Span)>
             let along = along?;
             if along[0].hypot(along[1]) == 0.0 {
                 let span = ctx.span_of(&sub, "along");
-                ctx.error(ErrorKind::OutOfRange, &span, "`along` of [sweep] move is [0, 0]; give a direction [dx, dy]");
+                ctx.error(
+                    ErrorKind::OutOfRange,
+                    &span,
+                    "`along` of [sweep] move is [0, 0]; give a direction [dx, dy]",
+                );
                 return None;
             }
-            RawSweep::Move { shapes: shapes?, along, from: from?, to: to?, steps: steps? }
+            RawSweep::Move {
+                shapes: shapes?,
+                along,
+                from: from?,
+                to: to?,
+                steps: steps?,
+            }
         }
         _ => {
             let shapes = required_names(ctx, &sub, "shapes");
             let center = ctx.point(&sub, "center").ok()?.unwrap_or([0.0, 0.0]);
-            RawSweep::Turn { shapes: shapes?, center, from: from?, to: to?, steps: steps? }
+            RawSweep::Turn {
+                shapes: shapes?,
+                center,
+                from: from?,
+                to: to?,
+                steps: steps?,
+            }
         }
     };
     Some((sweep, sub.span.clone()))
@@ -1248,12 +1545,22 @@ mod tests {
     #[test]
     fn bh_rules() {
         assert!(check_bh(&[0.0, 100.0], &[0.0, 1.0]).is_ok());
-        assert!(check_bh(&[0.0, 100.0], &[0.0]).unwrap_err().contains("2 H values but 1 B"));
+        assert!(check_bh(&[0.0, 100.0], &[0.0])
+            .unwrap_err()
+            .contains("2 H values but 1 B"));
         assert!(check_bh(&[0.0], &[0.0]).unwrap_err().contains("at least 2"));
-        assert!(check_bh(&[10.0, 100.0], &[0.0, 1.0]).unwrap_err().contains("start at H = 0"));
-        assert!(check_bh(&[0.0, 100.0, 100.0], &[0.0, 1.0, 1.1]).unwrap_err().contains("increasing in H"));
-        assert!(check_bh(&[0.0, 100.0, 200.0], &[0.0, 1.0, 1.0]).unwrap_err().contains("increasing in B"));
+        assert!(check_bh(&[10.0, 100.0], &[0.0, 1.0])
+            .unwrap_err()
+            .contains("start at H = 0"));
+        assert!(check_bh(&[0.0, 100.0, 100.0], &[0.0, 1.0, 1.1])
+            .unwrap_err()
+            .contains("increasing in H"));
+        assert!(check_bh(&[0.0, 100.0, 200.0], &[0.0, 1.0, 1.0])
+            .unwrap_err()
+            .contains("increasing in B"));
         // B = 1 mT at H = 1000 A/m is μr ≈ 0.8: below μ0 (μ0·1000 A/m = 1.2566 mT).
-        assert!(check_bh(&[0.0, 1000.0], &[0.0, 0.001]).unwrap_err().contains("below μ0"));
+        assert!(check_bh(&[0.0, 1000.0], &[0.0, 0.001])
+            .unwrap_err()
+            .contains("below μ0"));
     }
 }

@@ -40,7 +40,13 @@ pub(crate) struct Ctx<'a> {
 
 impl<'a> Ctx<'a> {
     pub(crate) fn new(file: &str, text: &'a str) -> Ctx<'a> {
-        Ctx { file: file.to_string(), text, lines: LineIndex::new(text), errors: Vec::new(), warnings: Vec::new() }
+        Ctx {
+            file: file.to_string(),
+            text,
+            lines: LineIndex::new(text),
+            errors: Vec::new(),
+            warnings: Vec::new(),
+        }
     }
 
     fn locate(&self, span: &Span) -> (Option<usize>, Option<usize>) {
@@ -58,15 +64,31 @@ impl<'a> Ctx<'a> {
         self.locate(span).0
     }
 
-    pub(crate) fn error(&mut self, kind: ErrorKind, span: &Span, what: impl Into<String>) -> Reported {
+    pub(crate) fn error(
+        &mut self,
+        kind: ErrorKind,
+        span: &Span,
+        what: impl Into<String>,
+    ) -> Reported {
         let (line, column) = self.locate(span);
-        self.errors.push(ModelError { file: self.file.clone(), line, column, kind, what: what.into() });
+        self.errors.push(ModelError {
+            file: self.file.clone(),
+            line,
+            column,
+            kind,
+            what: what.into(),
+        });
         Reported
     }
 
     pub(crate) fn warn(&mut self, span: &Span, what: impl Into<String>) {
         let (line, column) = self.locate(span);
-        self.warnings.push(ModelWarning { file: self.file.clone(), line, column, what: what.into() });
+        self.warnings.push(ModelWarning {
+            file: self.file.clone(),
+            line,
+            column,
+            what: what.into(),
+        });
     }
 
     /// Report every key of `sec` not in `allowed`, suggesting the nearest
@@ -87,63 +109,109 @@ impl<'a> Ctx<'a> {
                     hint = format!("; valid keys here: {}", allowed.join(", "));
                 }
             }
-            self.error(ErrorKind::UnknownKey, &span, format!("unknown key `{key}` in {}{hint}", sec.label));
+            self.error(
+                ErrorKind::UnknownKey,
+                &span,
+                format!("unknown key `{key}` in {}{hint}", sec.label),
+            );
             unknown += 1;
         }
         unknown
     }
 
     /// A sub-table (header table or inline table) under `key`.
-    pub(crate) fn section<'t>(&mut self, sec: &Section<'t>, key: &str, label: String) -> Field<Section<'t>> {
-        let Some(item) = sec.table.get(key) else { return Ok(None) };
+    pub(crate) fn section<'t>(
+        &mut self,
+        sec: &Section<'t>,
+        key: &str,
+        label: String,
+    ) -> Field<Section<'t>> {
+        let Some(item) = sec.table.get(key) else {
+            return Ok(None);
+        };
         match item.as_table_like() {
-            Some(table) => Ok(Some(Section { table, span: item.span().or_else(|| key_span(sec, key)), label })),
+            Some(table) => Ok(Some(Section {
+                table,
+                span: item.span().or_else(|| key_span(sec, key)),
+                label,
+            })),
             None => Err(self.wrong_type(sec, key, item, "a table")),
         }
     }
 
     /// An array of tables under `key`, as `[[key]]` headers or as an array of
     /// inline tables.
-    pub(crate) fn sections<'t>(&mut self, sec: &Section<'t>, key: &str) -> Vec<Option<Section<'t>>> {
-        let Some(item) = sec.table.get(key) else { return Vec::new() };
+    pub(crate) fn sections<'t>(
+        &mut self,
+        sec: &Section<'t>,
+        key: &str,
+    ) -> Vec<Option<Section<'t>>> {
+        let Some(item) = sec.table.get(key) else {
+            return Vec::new();
+        };
         match item {
             Item::ArrayOfTables(array) => array
                 .iter()
                 .enumerate()
                 .map(|(i, t)| {
-                    Some(Section { table: t as &dyn TableLike, span: t.span(), label: format!("[[{key}]] #{}", i + 1) })
+                    Some(Section {
+                        table: t as &dyn TableLike,
+                        span: t.span(),
+                        label: format!("[[{key}]] #{}", i + 1),
+                    })
                 })
                 .collect(),
             Item::Value(Value::Array(array)) => array
                 .iter()
                 .enumerate()
                 .map(|(i, v)| match v.as_inline_table() {
-                    Some(t) => {
-                        Some(Section { table: t as &dyn TableLike, span: t.span(), label: format!("[[{key}]] #{}", i + 1) })
-                    }
+                    Some(t) => Some(Section {
+                        table: t as &dyn TableLike,
+                        span: t.span(),
+                        label: format!("[[{key}]] #{}", i + 1),
+                    }),
                     None => {
                         self.error(
                             ErrorKind::WrongType,
                             &v.span(),
-                            format!("`{key}` #{} must be a table, found {}", i + 1, v.type_name()),
+                            format!(
+                                "`{key}` #{} must be a table, found {}",
+                                i + 1,
+                                v.type_name()
+                            ),
                         );
                         None
                     }
                 })
                 .collect(),
             other => {
-                self.wrong_type(sec, key, other, &format!("an array of tables (write `[[{key}]]` headers)"));
+                self.wrong_type(
+                    sec,
+                    key,
+                    other,
+                    &format!("an array of tables (write `[[{key}]]` headers)"),
+                );
                 Vec::new()
             }
         }
     }
 
-    pub(crate) fn wrong_type(&mut self, sec: &Section<'_>, key: &str, item: &Item, expected: &str) -> Reported {
+    pub(crate) fn wrong_type(
+        &mut self,
+        sec: &Section<'_>,
+        key: &str,
+        item: &Item,
+        expected: &str,
+    ) -> Reported {
         let span = item.span().or_else(|| key_span(sec, key));
         self.error(
             ErrorKind::WrongType,
             &span,
-            format!("`{key}` in {} must be {expected}, found {}", sec.label, item.type_name()),
+            format!(
+                "`{key}` in {} must be {expected}, found {}",
+                sec.label,
+                item.type_name()
+            ),
         )
     }
 
@@ -157,12 +225,18 @@ impl<'a> Ctx<'a> {
 
     /// Report a missing required key.
     pub(crate) fn missing(&mut self, sec: &Section<'_>, key: &str, advice: &str) -> Reported {
-        self.error(ErrorKind::MissingKey, &sec.span, format!("{} needs `{key}`{advice}", sec.label))
+        self.error(
+            ErrorKind::MissingKey,
+            &sec.span,
+            format!("{} needs `{key}`{advice}", sec.label),
+        )
     }
 
     /// A finite number (integer or float).
     pub(crate) fn number(&mut self, sec: &Section<'_>, key: &str) -> Field<f64> {
-        let Some(v) = self.value(sec, key, "a number")? else { return Ok(None) };
+        let Some(v) = self.value(sec, key, "a number")? else {
+            return Ok(None);
+        };
         let x = match v {
             Value::Integer(i) => *i.value() as f64,
             Value::Float(f) => *f.value(),
@@ -172,7 +246,10 @@ impl<'a> Ctx<'a> {
             return Err(self.error(
                 ErrorKind::OutOfRange,
                 &v.span(),
-                format!("`{key}` in {} must be a finite number, found {x}", sec.label),
+                format!(
+                    "`{key}` in {} must be a finite number, found {x}",
+                    sec.label
+                ),
             ));
         }
         Ok(Some(x))
@@ -187,26 +264,40 @@ impl<'a> Ctx<'a> {
         ok: impl Fn(f64) -> bool,
         rule: &str,
     ) -> Field<f64> {
-        let Some(x) = self.number(sec, key)? else { return Ok(None) };
+        let Some(x) = self.number(sec, key)? else {
+            return Ok(None);
+        };
         if ok(x) {
             Ok(Some(x))
         } else {
             let span = self.span_of(sec, key);
-            Err(self.error(ErrorKind::OutOfRange, &span, format!("`{key}` in {} {rule}, found {x}", sec.label)))
+            Err(self.error(
+                ErrorKind::OutOfRange,
+                &span,
+                format!("`{key}` in {} {rule}, found {x}", sec.label),
+            ))
         }
     }
 
     /// A whole number in `lo..=hi` (an integral float such as `10.0` is
     /// accepted).
     pub(crate) fn integer(&mut self, sec: &Section<'_>, key: &str, lo: i64, hi: i64) -> Field<i64> {
-        let Some(v) = self.value(sec, key, "a whole number")? else { return Ok(None) };
+        let Some(v) = self.value(sec, key, "a whole number")? else {
+            return Ok(None);
+        };
         let n = match v {
             Value::Integer(i) => *i.value(),
-            Value::Float(f) if f.value().fract() == 0.0 && f.value().abs() < 9e15 => *f.value() as i64,
+            Value::Float(f) if f.value().fract() == 0.0 && f.value().abs() < 9e15 => {
+                *f.value() as i64
+            }
             _ => return Err(self.wrong_value_type(sec, key, v, "a whole number")),
         };
         if n < lo || n > hi {
-            let range = if hi == i64::MAX { format!("at least {lo}") } else { format!("from {lo} to {hi}") };
+            let range = if hi == i64::MAX {
+                format!("at least {lo}")
+            } else {
+                format!("from {lo} to {hi}")
+            };
             return Err(self.error(
                 ErrorKind::OutOfRange,
                 &v.span(),
@@ -217,7 +308,9 @@ impl<'a> Ctx<'a> {
     }
 
     pub(crate) fn boolean(&mut self, sec: &Section<'_>, key: &str) -> Field<bool> {
-        let Some(v) = self.value(sec, key, "true or false")? else { return Ok(None) };
+        let Some(v) = self.value(sec, key, "true or false")? else {
+            return Ok(None);
+        };
         match v.as_bool() {
             Some(b) => Ok(Some(b)),
             None => Err(self.wrong_value_type(sec, key, v, "true or false")),
@@ -225,7 +318,9 @@ impl<'a> Ctx<'a> {
     }
 
     pub(crate) fn string<'t>(&mut self, sec: &Section<'t>, key: &str) -> Field<&'t str> {
-        let Some(v) = self.value(sec, key, "a string")? else { return Ok(None) };
+        let Some(v) = self.value(sec, key, "a string")? else {
+            return Ok(None);
+        };
         match v.as_str() {
             Some(s) => Ok(Some(s)),
             None => Err(self.wrong_value_type(sec, key, v, "a string")),
@@ -233,24 +328,40 @@ impl<'a> Ctx<'a> {
     }
 
     /// One of the `choices`, suggesting the nearest on a typo.
-    pub(crate) fn choice<'c>(&mut self, sec: &Section<'_>, key: &str, choices: &[&'c str]) -> Field<&'c str> {
-        let Some(s) = self.string(sec, key)? else { return Ok(None) };
+    pub(crate) fn choice<'c>(
+        &mut self,
+        sec: &Section<'_>,
+        key: &str,
+        choices: &[&'c str],
+    ) -> Field<&'c str> {
+        let Some(s) = self.string(sec, key)? else {
+            return Ok(None);
+        };
         if let Some(c) = choices.iter().find(|c| **c == s) {
             return Ok(Some(c));
         }
         let span = self.span_of(sec, key);
         let hint = suggest::did_you_mean(s, choices.iter().copied());
-        let list = choices.iter().map(|c| format!("\"{c}\"")).collect::<Vec<_>>().join(", ");
+        let list = choices
+            .iter()
+            .map(|c| format!("\"{c}\""))
+            .collect::<Vec<_>>()
+            .join(", ");
         Err(self.error(
             ErrorKind::OutOfRange,
             &span,
-            format!("`{key}` in {} is \"{s}\", which is not one of {list}{hint}", sec.label),
+            format!(
+                "`{key}` in {} is \"{s}\", which is not one of {list}{hint}",
+                sec.label
+            ),
         ))
     }
 
     /// A point `[x, y]` of finite numbers.
     pub(crate) fn point(&mut self, sec: &Section<'_>, key: &str) -> Field<Point> {
-        let Some(v) = self.value(sec, key, "a point [x, y]")? else { return Ok(None) };
+        let Some(v) = self.value(sec, key, "a point [x, y]")? else {
+            return Ok(None);
+        };
         let label = format!("`{key}` in {}", sec.label);
         self.point_value(v, &label).map(Some)
     }
@@ -267,7 +378,10 @@ impl<'a> Ctx<'a> {
             return Err(self.error(
                 ErrorKind::WrongType,
                 &v.span(),
-                format!("{label} must be a point [x, y] with 2 numbers, found {} values", array.len()),
+                format!(
+                    "{label} must be a point [x, y] with 2 numbers, found {} values",
+                    array.len()
+                ),
             ));
         }
         let mut p = [0.0; 2];
@@ -301,7 +415,9 @@ impl<'a> Ctx<'a> {
 
     /// An array of finite numbers.
     pub(crate) fn numbers(&mut self, sec: &Section<'_>, key: &str) -> Field<Vec<f64>> {
-        let Some(v) = self.value(sec, key, "an array of numbers")? else { return Ok(None) };
+        let Some(v) = self.value(sec, key, "an array of numbers")? else {
+            return Ok(None);
+        };
         let label = format!("`{key}` in {}", sec.label);
         let Some(array) = v.as_array() else {
             return Err(self.wrong_value_type(sec, key, v, "an array of numbers"));
@@ -323,7 +439,9 @@ impl<'a> Ctx<'a> {
 
     /// An array of points `[[x, y], ...]`.
     pub(crate) fn points(&mut self, sec: &Section<'_>, key: &str) -> Field<Vec<Point>> {
-        let Some(v) = self.value(sec, key, "an array of points [[x, y], ...]")? else { return Ok(None) };
+        let Some(v) = self.value(sec, key, "an array of points [[x, y], ...]")? else {
+            return Ok(None);
+        };
         let label = format!("`{key}` in {}", sec.label);
         let Some(array) = v.as_array() else {
             return Err(self.wrong_value_type(sec, key, v, "an array of points [[x, y], ...]"));
@@ -344,8 +462,14 @@ impl<'a> Ctx<'a> {
     }
 
     /// An array of strings.
-    pub(crate) fn strings<'t>(&mut self, sec: &Section<'t>, key: &str) -> Field<Vec<(&'t str, Span)>> {
-        let Some(v) = self.value(sec, key, "an array of names")? else { return Ok(None) };
+    pub(crate) fn strings<'t>(
+        &mut self,
+        sec: &Section<'t>,
+        key: &str,
+    ) -> Field<Vec<(&'t str, Span)>> {
+        let Some(v) = self.value(sec, key, "an array of names")? else {
+            return Ok(None);
+        };
         let Some(array) = v.as_array() else {
             // A single name is accepted as a one-name list.
             if let Some(s) = v.as_str() {
@@ -362,7 +486,11 @@ impl<'a> Ctx<'a> {
                     self.error(
                         ErrorKind::WrongType,
                         &e.span(),
-                        format!("`{key}` in {} must hold names (strings), found {}", sec.label, e.type_name()),
+                        format!(
+                            "`{key}` in {} must hold names (strings), found {}",
+                            sec.label,
+                            e.type_name()
+                        ),
                     );
                     bad = true;
                 }
@@ -375,17 +503,31 @@ impl<'a> Ctx<'a> {
         }
     }
 
-    fn wrong_value_type(&mut self, sec: &Section<'_>, key: &str, v: &Value, expected: &str) -> Reported {
+    fn wrong_value_type(
+        &mut self,
+        sec: &Section<'_>,
+        key: &str,
+        v: &Value,
+        expected: &str,
+    ) -> Reported {
         self.error(
             ErrorKind::WrongType,
             &v.span(),
-            format!("`{key}` in {} must be {expected}, found {}", sec.label, v.type_name()),
+            format!(
+                "`{key}` in {} must be {expected}, found {}",
+                sec.label,
+                v.type_name()
+            ),
         )
     }
 
     /// The span of a key's value (or of the key).
     pub(crate) fn span_of(&self, sec: &Section<'_>, key: &str) -> Span {
-        sec.table.get(key).and_then(Item::span).or_else(|| key_span(sec, key)).or_else(|| sec.span.clone())
+        sec.table
+            .get(key)
+            .and_then(Item::span)
+            .or_else(|| key_span(sec, key))
+            .or_else(|| sec.span.clone())
     }
 }
 
@@ -398,12 +540,22 @@ fn home_of_key(key: &str) -> Option<&'static str> {
     Some(match key {
         "title" | "symmetry" | "depth" | "length_unit" | "element_order" => "[model]",
         "max_size" | "min_angle" | "growth" | "adapt" | "target_error" => "[mesh]",
-        "relative_permeability" | "bh_curve" | "bh_curve_file" | "stacking_factor" | "remanence" | "from_library" => {
-            "[materials.NAME]"
-        }
+        "relative_permeability"
+        | "bh_curve"
+        | "bh_curve_file"
+        | "stacking_factor"
+        | "remanence"
+        | "from_library" => "[materials.NAME]",
         "turns" => "[windings.NAME]",
-        "material" | "mesh_size" | "winding" | "direction" | "magnetization_angle" | "translate" | "rotate"
-        | "rotate_about" | "repeat" => "[[shape]]",
+        "material"
+        | "mesh_size"
+        | "winding"
+        | "direction"
+        | "magnetization_angle"
+        | "translate"
+        | "rotate"
+        | "rotate_about"
+        | "repeat" => "[[shape]]",
         "condition" | "field" => "[outer] or [[edge]]",
         "samples" => "[[profile]]",
         "method" => "[[force]]",

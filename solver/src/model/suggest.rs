@@ -29,7 +29,10 @@ pub(crate) fn edit_distance(a: &str, b: &str) -> usize {
 /// The candidate nearest to `word`, if it is near enough to be a likely typo:
 /// at most a third of the longer word's characters differ (and at least one
 /// edit is allowed for short words).
-pub(crate) fn nearest<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) -> Option<&'a str> {
+pub(crate) fn nearest<'a>(
+    word: &str,
+    candidates: impl IntoIterator<Item = &'a str>,
+) -> Option<&'a str> {
     let mut best: Option<(usize, &'a str)> = None;
     for c in candidates {
         let d = edit_distance(word, c);
@@ -44,7 +47,10 @@ pub(crate) fn nearest<'a>(word: &str, candidates: impl IntoIterator<Item = &'a s
 }
 
 /// `"; did you mean `x`?"` or an empty string.
-pub(crate) fn did_you_mean<'a>(word: &str, candidates: impl IntoIterator<Item = &'a str>) -> String {
+pub(crate) fn did_you_mean<'a>(
+    word: &str,
+    candidates: impl IntoIterator<Item = &'a str>,
+) -> String {
     match nearest(word, candidates) {
         Some(c) => format!("; did you mean `{c}`?"),
         None => String::new(),
@@ -68,7 +74,10 @@ mod tests {
     #[test]
     fn suggests_only_near_names() {
         let keys = ["relative_permeability", "remanence", "stacking_factor"];
-        assert_eq!(nearest("relative_permability", keys), Some("relative_permeability"));
+        assert_eq!(
+            nearest("relative_permability", keys),
+            Some("relative_permeability")
+        );
         assert_eq!(nearest("colour", keys), None);
     }
 }

@@ -76,7 +76,13 @@ fn sign(d: f64) -> &'static str {
 }
 
 pub(crate) fn summarize(model: &Model) -> ModelSummary {
-    let material_name = |i: usize| model.materials.get(i).map(|m| m.name.clone()).unwrap_or_default();
+    let material_name = |i: usize| {
+        model
+            .materials
+            .get(i)
+            .map(|m| m.name.clone())
+            .unwrap_or_default()
+    };
     let shapes = model
         .shapes
         .iter()
@@ -88,7 +94,11 @@ pub(crate) fn summarize(model: &Model) -> ModelSummary {
                 Excitation::None => String::new(),
                 Excitation::Winding { winding, direction } => format!(
                     "winding {} ({})",
-                    model.windings.get(winding).map(|w| w.name.as_str()).unwrap_or("?"),
+                    model
+                        .windings
+                        .get(winding)
+                        .map(|w| w.name.as_str())
+                        .unwrap_or("?"),
                     sign(direction)
                 ),
                 Excitation::Current { amps } => format!("{amps} A"),
@@ -102,7 +112,9 @@ pub(crate) fn summarize(model: &Model) -> ModelSummary {
         .enumerate()
         .map(|(i, m)| {
             let mut kind = match (&m.permeability, m.remanence_t) {
-                (Permeability::Linear { relative }, Some(br)) => format!("magnet Br = {br} T, μr = {relative}"),
+                (Permeability::Linear { relative }, Some(br)) => {
+                    format!("magnet Br = {br} T, μr = {relative}")
+                }
                 (Permeability::Linear { relative }, None) => format!("linear μr = {relative}"),
                 (Permeability::Curve(c), _) => format!("B-H curve, {} points", c.h_a_per_m.len()),
             };
@@ -113,7 +125,12 @@ pub(crate) fn summarize(model: &Model) -> ModelSummary {
                 name: m.name.clone(),
                 kind,
                 stacking_factor: m.stacking_factor,
-                shapes: model.shapes.iter().filter(|s| s.material == i).map(|s| s.name.clone()).collect(),
+                shapes: model
+                    .shapes
+                    .iter()
+                    .filter(|s| s.material == i)
+                    .map(|s| s.name.clone())
+                    .collect(),
             }
         })
         .collect();
@@ -152,7 +169,11 @@ pub(crate) fn summarize(model: &Model) -> ModelSummary {
         outer: format!(
             "{}{}, {condition}",
             model.outer.spec.kind(),
-            if model.outer.is_default { " (default)" } else { "" }
+            if model.outer.is_default {
+                " (default)"
+            } else {
+                ""
+            }
         ),
         shapes,
         materials,

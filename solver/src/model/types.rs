@@ -149,9 +149,19 @@ impl OutlineSpec {
             OutlineSpec::Rectangle { min, max } => Outline::rectangle(*min, *max),
             OutlineSpec::Circle { center, radius } => Outline::circle(*center, *radius),
             OutlineSpec::Polygon(points) => Outline::polygon(points),
-            OutlineSpec::Sector { center, inner_radius, outer_radius, start_angle_deg, end_angle_deg } => {
-                Outline::sector(*center, *inner_radius, *outer_radius, *start_angle_deg, *end_angle_deg)
-            }
+            OutlineSpec::Sector {
+                center,
+                inner_radius,
+                outer_radius,
+                start_angle_deg,
+                end_angle_deg,
+            } => Outline::sector(
+                *center,
+                *inner_radius,
+                *outer_radius,
+                *start_angle_deg,
+                *end_angle_deg,
+            ),
         }
     }
 }
@@ -434,10 +444,18 @@ impl Sweep {
     /// The swept values, `steps + 1` of them from `from` to `to`.
     pub fn values(&self) -> Vec<f64> {
         let (from, to, steps) = match *self {
-            Sweep::Current { from, to, steps, .. }
-            | Sweep::Move { from, to, steps, .. }
-            | Sweep::Turn { from, to, steps, .. } => (from, to, steps.max(1)),
+            Sweep::Current {
+                from, to, steps, ..
+            }
+            | Sweep::Move {
+                from, to, steps, ..
+            }
+            | Sweep::Turn {
+                from, to, steps, ..
+            } => (from, to, steps.max(1)),
         };
-        (0..=steps).map(|k| from + (to - from) * k as f64 / steps as f64).collect()
+        (0..=steps)
+            .map(|k| from + (to - from) * k as f64 / steps as f64)
+            .collect()
     }
 }

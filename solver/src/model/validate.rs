@@ -21,26 +21,47 @@ const EDGE_TOLERANCE: f64 = 1e-6;
 /// Area of an equilateral triangle of unit edge (√3/4), for estimates.
 const UNIT_TRIANGLE_AREA: f64 = 0.433_012_701_892_219_3;
 
-pub(crate) fn build(text: &str, source: &ModelSource, loader: &dyn FileLoader) -> Result<Model, ModelErrors> {
+pub(crate) fn build(
+    text: &str,
+    source: &ModelSource,
+    loader: &dyn FileLoader,
+) -> Result<Model, ModelErrors> {
     let mut ctx = Ctx::new(&source.name, text);
     let doc = match toml_edit::ImDocument::parse(text) {
         Ok(doc) => doc,
         Err(e) => {
-            let message = e.message().lines().map(str::trim).filter(|l| !l.is_empty()).collect::<Vec<_>>().join("; ");
+            let message = e
+                .message()
+                .lines()
+                .map(str::trim)
+                .filter(|l| !l.is_empty())
+                .collect::<Vec<_>>()
+                .join("; ");
             let hint = if message.contains("invalid string") {
                 "text values need quotes, as in symmetry = \"planar\""
             } else {
                 "TOML is key = value lines under [table] and [[array]] headers"
             };
-            ctx.error(ErrorKind::Syntax, &e.span(), format!("TOML syntax error: {message} ({hint})"));
+            ctx.error(
+                ErrorKind::Syntax,
+                &e.span(),
+                format!("TOML syntax error: {message} ({hint})"),
+            );
             return Err(ModelErrors { errors: ctx.errors });
         }
     };
-    let root = Section { table: doc.as_table(), span: Some(0..0), label: "the top level".into() };
+    let root = Section {
+        table: doc.as_table(),
+        span: Some(0..0),
+        label: "the top level".into(),
+    };
     let raw = parse::read_model(&mut ctx, &root, loader);
     let model = resolve(&mut ctx, raw, source);
     match model {
-        Some(model) if ctx.errors.is_empty() => Ok(Model { warnings: std::mem::take(&mut ctx.warnings), ..model }),
+        Some(model) if ctx.errors.is_empty() => Ok(Model {
+            warnings: std::mem::take(&mut ctx.warnings),
+            ..model
+        }),
         _ => {
             let mut errors = std::mem::take(&mut ctx.errors);
             if errors.is_empty() {
@@ -68,9 +89,21 @@ pub(crate) fn extent(shapes: &[Shape]) -> f64 {
     }
 }
 
-fn undefined(ctx: &mut Ctx<'_>, span: &Span, owner: &str, what: &str, name: &str, known: &[&str], advice: &str) {
+fn undefined(
+    ctx: &mut Ctx<'_>,
+    span: &Span,
+    owner: &str,
+    what: &str,
+    name: &str,
+    known: &[&str],
+    advice: &str,
+) {
     let hint = suggest::did_you_mean(name, known.iter().copied());
-    let list = if known.is_empty() { "none".to_string() } else { known.join(", ") };
+    let list = if known.is_empty() {
+        "none".to_string()
+    } else {
+        known.join(", ")
+    };
     ctx.error(
         ErrorKind::UndefinedName,
         span,
@@ -106,7 +139,12 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
     let windings: Vec<Winding> = raw
         .windings
         .iter()
-        .map(|w| Winding { name: w.name.clone(), turns: w.turns, current_a: w.current.unwrap_or(0.0), line: ctx.line(&w.span) })
+        .map(|w| Winding {
+            name: w.name.clone(),
+            turns: w.turns,
+            current_a: w.current.unwrap_or(0.0),
+            line: ctx.line(&w.span),
+        })
         .collect();
 
     // Shapes.
@@ -178,7 +216,11 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
         Some(spec) => (spec.clone(), false),
         None => (default_outer(header.symmetry, bb_lo, bb_hi), true),
     };
-    let outer_label = if is_default { "the default outer circle" } else { "[outer] shape" };
+    let outer_label = if is_default {
+        "the default outer circle"
+    } else {
+        "[outer] shape"
+    };
     let outer_outline = match outline_of(ctx, &outer_spec, &raw.outer.span, outer_label) {
         Some(o) => o,
         None => return None,
@@ -213,7 +255,9 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
         }
         RawCondition::ZeroPotential => OuterCondition::ZeroPotential,
         RawCondition::FluxNormal => OuterCondition::FluxNormal,
-        RawCondition::UniformField => OuterCondition::UniformField { field_t: raw.outer.field.unwrap_or([0.0, 0.0]) },
+        RawCondition::UniformField => OuterCondition::UniformField {
+            field_t: raw.outer.field.unwrap_or([0.0, 0.0]),
+        },
     };
 
     // Shapes against the outer and the axis.
@@ -232,7 +276,10 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
                 continue;
             }
         }
-        if let Some(p) = sample_points(&s.outline).into_iter().find(|&p| !inside_or_on(&outer_outline, p, tol)) {
+        if let Some(p) = sample_points(&s.outline)
+            .into_iter()
+            .find(|&p| !inside_or_on(&outer_outline, p, tol))
+        {
             ctx.error(
                 ErrorKind::Geometry,
                 span,
@@ -257,9 +304,13 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
     }
     if estimate.is_nan() || estimate > mesh.max_triangles as f64 {
         let (span, culprit) = match worst {
-            Some((n, i)) if n > 0.5 * estimate => {
-                (shape_spans[i].clone(), format!("shape `{}` with mesh_size {}", shapes[i].name, shapes[i].mesh_size))
-            }
+            Some((n, i)) if n > 0.5 * estimate => (
+                shape_spans[i].clone(),
+                format!(
+                    "shape `{}` with mesh_size {}",
+                    shapes[i].name, shapes[i].mesh_size
+                ),
+            ),
             _ => (None, format!("[mesh] max_size {}", mesh.max_size)),
         };
         ctx.error(
@@ -281,7 +332,15 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
             RawEdgeKind::FluxNormal => EdgeKind::FluxNormal,
             RawEdgeKind::Periodic(p) | RawEdgeKind::AntiPeriodic(p) => {
                 let label = format!("`partner` of {}", e.label);
-                good &= check_stretch(ctx, &outer_outline, p[0], p[1], tol, &e.partner_span, &label);
+                good &= check_stretch(
+                    ctx,
+                    &outer_outline,
+                    p[0],
+                    p[1],
+                    tol,
+                    &e.partner_span,
+                    &label,
+                );
                 let (l1, l2) = (dist(e.from, e.to), dist(p[0], p[1]));
                 if good && (l1 - l2).abs() > 1e-6 * l1.max(l2) + tol {
                     ctx.error(
@@ -299,7 +358,11 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
                 }
             }
         };
-        edges.push(EdgeCondition { from: e.from, to: e.to, kind });
+        edges.push(EdgeCondition {
+            from: e.from,
+            to: e.to,
+            kind,
+        });
     }
 
     // Reports.
@@ -307,35 +370,69 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
     check_unique(ctx, "[[probe]]", raw.probes.iter().map(|p| &p.name));
     for p in &raw.probes {
         if !inside_or_on(&outer_outline, p.at, tol) {
-            outside_error(ctx, &p.name.1, &format!("[[probe]] `{}`", p.name.0), p.at, outer_label);
+            outside_error(
+                ctx,
+                &p.name.1,
+                &format!("[[probe]] `{}`", p.name.0),
+                p.at,
+                outer_label,
+            );
         }
-        probes.push(Probe { name: p.name.0.clone(), at: p.at });
+        probes.push(Probe {
+            name: p.name.0.clone(),
+            at: p.at,
+        });
     }
     let mut profiles = Vec::new();
     check_unique(ctx, "[[profile]]", raw.profiles.iter().map(|p| &p.name));
     for p in &raw.profiles {
         for end in [p.from, p.to] {
             if !inside_or_on(&outer_outline, end, tol) {
-                outside_error(ctx, &p.name.1, &format!("[[profile]] `{}`", p.name.0), end, outer_label);
+                outside_error(
+                    ctx,
+                    &p.name.1,
+                    &format!("[[profile]] `{}`", p.name.0),
+                    end,
+                    outer_label,
+                );
                 break;
             }
         }
-        profiles.push(Profile { name: p.name.0.clone(), from: p.from, to: p.to, samples: p.samples });
+        profiles.push(Profile {
+            name: p.name.0.clone(),
+            from: p.from,
+            to: p.to,
+            samples: p.samples,
+        });
     }
     let mut loops = Vec::new();
     check_unique(ctx, "[[loop]]", raw.loops.iter().map(|l| &l.name));
     for l in &raw.loops {
         let label = format!("[[loop]] `{}`", l.name.0);
-        let Some(outline) = outline_of(ctx, &l.spec, &l.name.1, &label) else { continue };
-        if let Some(p) = sample_points(&outline).into_iter().find(|&p| !inside_or_on(&outer_outline, p, tol)) {
+        let Some(outline) = outline_of(ctx, &l.spec, &l.name.1, &label) else {
+            continue;
+        };
+        if let Some(p) = sample_points(&outline)
+            .into_iter()
+            .find(|&p| !inside_or_on(&outer_outline, p, tol))
+        {
             outside_error(ctx, &l.name.1, &label, p, outer_label);
         }
-        loops.push(AmpereLoop { name: l.name.0.clone(), spec: l.spec.clone(), outline });
+        loops.push(AmpereLoop {
+            name: l.name.0.clone(),
+            spec: l.spec.clone(),
+            outline,
+        });
     }
 
     let shape_names: Vec<String> = {
         let mut v: Vec<String> = raw.shapes.iter().map(|s| s.name.clone()).collect();
-        v.extend(shapes.iter().filter(|s| s.copy.is_some()).map(|s| s.name.clone()));
+        v.extend(
+            shapes
+                .iter()
+                .filter(|s| s.copy.is_some())
+                .map(|s| s.name.clone()),
+        );
         v
     };
     let lookup = |ctx: &mut Ctx<'_>, owner: &str, names: &[NameRef]| -> Vec<usize> {
@@ -360,53 +457,105 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
     let forces: Vec<ForceRequest> = raw
         .forces
         .iter()
-        .map(|f| ForceRequest { name: f.name.0.clone(), shapes: lookup(ctx, &f.label, &f.shapes), method: f.method })
+        .map(|f| ForceRequest {
+            name: f.name.0.clone(),
+            shapes: lookup(ctx, &f.label, &f.shapes),
+            method: f.method,
+        })
         .collect();
     check_unique(ctx, "[[torque]]", raw.torques.iter().map(|t| &t.name));
     let torques: Vec<TorqueRequest> = raw
         .torques
         .iter()
-        .map(|t| TorqueRequest { name: t.name.0.clone(), shapes: lookup(ctx, &t.label, &t.shapes), center: t.center })
+        .map(|t| TorqueRequest {
+            name: t.name.0.clone(),
+            shapes: lookup(ctx, &t.label, &t.shapes),
+            center: t.center,
+        })
         .collect();
 
     let winding_names: Vec<&str> = windings.iter().map(|w| w.name.as_str()).collect();
     let mut swept_winding = None;
     let sweep = match &raw.sweep {
         None => None,
-        Some((RawSweep::Current { winding, from, to, steps }, _)) => {
-            match windings.iter().position(|w| w.name == winding.0) {
-                Some(i) => {
-                    swept_winding = Some(i);
-                    Some(Sweep::Current { winding: i, from: *from, to: *to, steps: *steps })
-                }
-                None if raw.declared_windings.contains(&winding.0) => None,
-                None => {
-                    undefined(
-                        ctx,
-                        &winding.1,
-                        "[sweep] current",
-                        "winding",
-                        &winding.0,
-                        &winding_names,
-                        "; define it under [windings.NAME]",
-                    );
-                    None
-                }
+        Some((
+            RawSweep::Current {
+                winding,
+                from,
+                to,
+                steps,
+            },
+            _,
+        )) => match windings.iter().position(|w| w.name == winding.0) {
+            Some(i) => {
+                swept_winding = Some(i);
+                Some(Sweep::Current {
+                    winding: i,
+                    from: *from,
+                    to: *to,
+                    steps: *steps,
+                })
             }
-        }
-        Some((RawSweep::Move { shapes: names, along, from, to, steps }, span)) => {
+            None if raw.declared_windings.contains(&winding.0) => None,
+            None => {
+                undefined(
+                    ctx,
+                    &winding.1,
+                    "[sweep] current",
+                    "winding",
+                    &winding.0,
+                    &winding_names,
+                    "; define it under [windings.NAME]",
+                );
+                None
+            }
+        },
+        Some((
+            RawSweep::Move {
+                shapes: names,
+                along,
+                from,
+                to,
+                steps,
+            },
+            span,
+        )) => {
             let moving = lookup(ctx, "[sweep] move", names);
             let len = along[0].hypot(along[1]);
             let unit = [along[0] / len, along[1] / len];
             for d in [*from, *to] {
                 for &i in &moving {
                     let moved = shapes[i].outline.translated([unit[0] * d, unit[1] * d]);
-                    check_moved(ctx, &moved, &outer_outline, tol, span, &shapes[i].name, &format!("a move of {d}"), outer_label);
+                    check_moved(
+                        ctx,
+                        &moved,
+                        &outer_outline,
+                        tol,
+                        span,
+                        &shapes[i].name,
+                        &format!("a move of {d}"),
+                        outer_label,
+                    );
                 }
             }
-            Some(Sweep::Move { shapes: moving, along: unit, from: *from, to: *to, steps: *steps })
+            Some(Sweep::Move {
+                shapes: moving,
+                along: unit,
+                from: *from,
+                to: *to,
+                steps: *steps,
+            })
         }
-        Some((RawSweep::Turn { shapes: names, center, from, to, steps }, span)) => {
+        Some((
+            RawSweep::Turn {
+                shapes: names,
+                center,
+                from,
+                to,
+                steps,
+            },
+            span,
+        )) => {
             let turning = lookup(ctx, "[sweep] turn", names);
             // The path of a rotation can leave the outer between its ends:
             // check up to 37 angles along it.
@@ -415,22 +564,50 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
                 let a = from + (to - from) * k as f64 / n as f64;
                 for &i in &turning {
                     let turned = shapes[i].outline.rotated(a, *center);
-                    check_moved(ctx, &turned, &outer_outline, tol, span, &shapes[i].name, &format!("a turn of {a}°"), outer_label);
+                    check_moved(
+                        ctx,
+                        &turned,
+                        &outer_outline,
+                        tol,
+                        span,
+                        &shapes[i].name,
+                        &format!("a turn of {a}°"),
+                        outer_label,
+                    );
                 }
             }
-            Some(Sweep::Turn { shapes: turning, center: *center, from: *from, to: *to, steps: *steps })
+            Some(Sweep::Turn {
+                shapes: turning,
+                center: *center,
+                from: *from,
+                to: *to,
+                steps: *steps,
+            })
         }
     };
 
-    warn_windings(ctx, &raw, &windings, &shapes, header.symmetry, swept_winding);
+    warn_windings(
+        ctx,
+        &raw,
+        &windings,
+        &shapes,
+        header.symmetry,
+        swept_winding,
+    );
     for (i, m) in materials.iter().enumerate().skip(1) {
         if !shapes.iter().any(|s| s.material == i) {
-            ctx.warn(&material_spans[i], format!("material `{}` is not used by any shape", m.name));
+            ctx.warn(
+                &material_spans[i],
+                format!("material `{}` is not used by any shape", m.name),
+            );
         }
     }
     for rs in &raw.shapes {
         if let (Some((_, span)), Some((name, _))) = (&rs.magnetization_angle, &rs.material) {
-            if materials.iter().any(|m| &m.name == name && m.remanence_t.is_none()) {
+            if materials
+                .iter()
+                .any(|m| &m.name == name && m.remanence_t.is_none())
+            {
                 ctx.warn(
                     span,
                     format!("{}: `magnetization_angle` has no effect: material `{name}` has no `remanence`", rs.label),
@@ -441,7 +618,10 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
 
     Some(Model {
         source: source.name.clone(),
-        title: header.title.clone().unwrap_or_else(|| source.stem().to_string()),
+        title: header
+            .title
+            .clone()
+            .unwrap_or_else(|| source.stem().to_string()),
         symmetry: header.symmetry,
         length_unit: header.length_unit,
         depth,
@@ -450,7 +630,12 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
         materials,
         windings,
         shapes,
-        outer: Outer { spec: outer_spec, outline: outer_outline, is_default, condition },
+        outer: Outer {
+            spec: outer_spec,
+            outline: outer_outline,
+            is_default,
+            condition,
+        },
         edges,
         probes,
         profiles,
@@ -467,11 +652,21 @@ fn dist(a: Point, b: Point) -> f64 {
 }
 
 fn shapes_named(shapes: &[Shape], name: &str) -> Vec<usize> {
-    let exact: Vec<usize> = shapes.iter().enumerate().filter(|(_, s)| s.name == name).map(|(i, _)| i).collect();
+    let exact: Vec<usize> = shapes
+        .iter()
+        .enumerate()
+        .filter(|(_, s)| s.name == name)
+        .map(|(i, _)| i)
+        .collect();
     if !exact.is_empty() {
         return exact;
     }
-    shapes.iter().enumerate().filter(|(_, s)| s.base_name == name).map(|(i, _)| i).collect()
+    shapes
+        .iter()
+        .enumerate()
+        .filter(|(_, s)| s.base_name == name)
+        .map(|(i, _)| i)
+        .collect()
 }
 
 /// The default outer: a circle three times the shapes' bounding circle
@@ -482,7 +677,10 @@ fn default_outer(symmetry: Symmetry, lo: Point, hi: Point) -> OutlineSpec {
     match symmetry {
         Symmetry::Planar => {
             let center = [0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1])];
-            OutlineSpec::Circle { center, radius: 3.0 * half[0].hypot(half[1]) }
+            OutlineSpec::Circle {
+                center,
+                radius: 3.0 * half[0].hypot(half[1]),
+            }
         }
         Symmetry::Axisymmetric => {
             let center = [0.0, 0.5 * (lo[1] + hi[1])];
@@ -502,7 +700,16 @@ fn open_outer_ok(spec: &OutlineSpec, symmetry: Symmetry) -> bool {
     match (symmetry, spec) {
         (Symmetry::Planar, OutlineSpec::Circle { .. }) => true,
         (Symmetry::Planar, OutlineSpec::Sector { inner_radius, .. }) => *inner_radius == 0.0,
-        (Symmetry::Axisymmetric, OutlineSpec::Sector { center, inner_radius, start_angle_deg, end_angle_deg, .. }) => {
+        (
+            Symmetry::Axisymmetric,
+            OutlineSpec::Sector {
+                center,
+                inner_radius,
+                start_angle_deg,
+                end_angle_deg,
+                ..
+            },
+        ) => {
             let start = start_angle_deg.rem_euclid(360.0);
             center[0] == 0.0
                 && *inner_radius == 0.0
@@ -531,7 +738,11 @@ fn outline_of(ctx: &mut Ctx<'_>, spec: &OutlineSpec, span: &Span, owner: &str) -
     match spec.to_outline() {
         Ok(o) => Some(o),
         Err(e) => {
-            ctx.error(ErrorKind::Geometry, span, format!("the {} of {owner} is not a valid region: {e}", spec.kind()));
+            ctx.error(
+                ErrorKind::Geometry,
+                span,
+                format!("the {} of {owner} is not a valid region: {e}", spec.kind()),
+            );
             None
         }
     }
@@ -552,7 +763,15 @@ fn expand_shape(
             None => {
                 if !raw.declared_materials.contains(name) {
                     let known: Vec<&str> = materials.iter().map(|m| m.name.as_str()).collect();
-                    undefined(ctx, span, &rs.label, "material", name, &known, "; define it under [materials.NAME]");
+                    undefined(
+                        ctx,
+                        span,
+                        &rs.label,
+                        "material",
+                        name,
+                        &known,
+                        "; define it under [materials.NAME]",
+                    );
                 }
                 0
             }
@@ -560,19 +779,34 @@ fn expand_shape(
     };
     let excitation = match (&rs.winding, rs.current) {
         (Some((name, span)), _) => match windings.iter().position(|w| &w.name == name) {
-            Some(i) => Excitation::Winding { winding: i, direction: rs.direction },
+            Some(i) => Excitation::Winding {
+                winding: i,
+                direction: rs.direction,
+            },
             None => {
                 if !raw.declared_windings.contains(name) {
                     let known: Vec<&str> = windings.iter().map(|w| w.name.as_str()).collect();
-                    undefined(ctx, span, &rs.label, "winding", name, &known, "; define it under [windings.NAME]");
+                    undefined(
+                        ctx,
+                        span,
+                        &rs.label,
+                        "winding",
+                        name,
+                        &known,
+                        "; define it under [windings.NAME]",
+                    );
                 }
                 Excitation::None
             }
         },
-        (None, Some(amps)) => Excitation::Current { amps: rs.direction * amps },
+        (None, Some(amps)) => Excitation::Current {
+            amps: rs.direction * amps,
+        },
         (None, None) => Excitation::None,
     };
-    let Some(base) = outline_of(ctx, &rs.spec, &rs.span, &rs.label) else { return Vec::new() };
+    let Some(base) = outline_of(ctx, &rs.spec, &rs.span, &rs.label) else {
+        return Vec::new();
+    };
     let mut placed = base;
     if let Some(t) = rs.translate {
         placed = placed.translated(t);
@@ -583,27 +817,34 @@ fn expand_shape(
     }
     let line = ctx.line(&rs.span);
     let angle0 = rs.magnetization_angle.as_ref().map_or(0.0, |(a, _)| *a) + rotate;
-    let one = |name: String, copy: Option<usize>, outline: Outline, flip: bool, extra_angle: f64| Shape {
-        name,
-        base_name: rs.name.clone(),
-        copy,
-        spec: rs.spec.clone(),
-        outline,
-        material,
-        mesh_size: rs.mesh_size.unwrap_or(f64::NAN),
-        excitation: match excitation {
-            Excitation::Winding { winding, direction } if flip => Excitation::Winding { winding, direction: -direction },
-            Excitation::Current { amps } if flip => Excitation::Current { amps: -amps },
-            ref e => e.clone(),
-        },
-        magnetization_angle_deg: angle0 + extra_angle + if flip { 180.0 } else { 0.0 },
-        table_index: rs.index,
-        line,
-    };
+    let one =
+        |name: String, copy: Option<usize>, outline: Outline, flip: bool, extra_angle: f64| Shape {
+            name,
+            base_name: rs.name.clone(),
+            copy,
+            spec: rs.spec.clone(),
+            outline,
+            material,
+            mesh_size: rs.mesh_size.unwrap_or(f64::NAN),
+            excitation: match excitation {
+                Excitation::Winding { winding, direction } if flip => Excitation::Winding {
+                    winding,
+                    direction: -direction,
+                },
+                Excitation::Current { amps } if flip => Excitation::Current { amps: -amps },
+                ref e => e.clone(),
+            },
+            magnetization_angle_deg: angle0 + extra_angle + if flip { 180.0 } else { 0.0 },
+            table_index: rs.index,
+            line,
+        };
     match &rs.repeat {
         None => vec![one(rs.name.clone(), None, placed, false, 0.0)],
         Some(rep) => {
-            if rep.alternate && rep.count % 2 == 1 && ((rep.count as f64 * rep.angle).abs() - 360.0).abs() < 1e-6 {
+            if rep.alternate
+                && rep.count % 2 == 1
+                && ((rep.count as f64 * rep.angle).abs() - 360.0).abs() < 1e-6
+            {
                 ctx.warn(
                     &rep.span,
                     format!(
@@ -613,22 +854,50 @@ fn expand_shape(
                 );
             }
             if (rep.count as f64 - 1.0) * rep.angle.abs() >= 360.0 - 1e-9 && rep.count > 1 {
-                ctx.warn(&rep.span, format!("{}: `repeat` goes round more than once, so copies overlap", rs.label));
+                ctx.warn(
+                    &rep.span,
+                    format!(
+                        "{}: `repeat` goes round more than once, so copies overlap",
+                        rs.label
+                    ),
+                );
             }
             (0..rep.count)
                 .map(|k| {
                     let a = rep.angle * k as f64;
-                    let outline = if k == 0 { placed.clone() } else { placed.rotated(a, rep.center) };
-                    one(format!("{}[{k}]", rs.name), Some(k), outline, rep.alternate && k % 2 == 1, a)
+                    let outline = if k == 0 {
+                        placed.clone()
+                    } else {
+                        placed.rotated(a, rep.center)
+                    };
+                    one(
+                        format!("{}[{k}]", rs.name),
+                        Some(k),
+                        outline,
+                        rep.alternate && k % 2 == 1,
+                        a,
+                    )
                 })
                 .collect()
         }
     }
 }
 
-fn check_stretch(ctx: &mut Ctx<'_>, outer: &Outline, a: Point, b: Point, tol: f64, span: &Span, label: &str) -> bool {
+fn check_stretch(
+    ctx: &mut Ctx<'_>,
+    outer: &Outline,
+    a: Point,
+    b: Point,
+    tol: f64,
+    span: &Span,
+    label: &str,
+) -> bool {
     if dist(a, b) <= tol {
-        ctx.error(ErrorKind::Geometry, span, format!("{label}: `from` and `to` are the same point; give a stretch"));
+        ctx.error(
+            ErrorKind::Geometry,
+            span,
+            format!("{label}: `from` and `to` are the same point; give a stretch"),
+        );
         return false;
     }
     if !on_straight_edge(outer, a, b, tol) {
@@ -649,7 +918,10 @@ fn outside_error(ctx: &mut Ctx<'_>, span: &Span, owner: &str, p: Point, outer_la
     ctx.error(
         ErrorKind::Geometry,
         span,
-        format!("{owner} at ({:.6}, {:.6}) lies outside {outer_label}; move it inside", p[0], p[1]),
+        format!(
+            "{owner} at ({:.6}, {:.6}) lies outside {outer_label}; move it inside",
+            p[0], p[1]
+        ),
     );
 }
 
@@ -664,7 +936,10 @@ fn check_moved(
     how: &str,
     outer_label: &str,
 ) {
-    if let Some(p) = sample_points(moved).into_iter().find(|&p| !inside_or_on(outer, p, tol)) {
+    if let Some(p) = sample_points(moved)
+        .into_iter()
+        .find(|&p| !inside_or_on(outer, p, tol))
+    {
         ctx.error(
             ErrorKind::Geometry,
             span,
@@ -713,7 +988,11 @@ fn warn_windings(
                 ),
             );
         } else if symmetry == Symmetry::Planar && go != ret {
-            let (has, lacks) = if go { ("go (+1)", "-1") } else { ("return (-1)", "+1") };
+            let (has, lacks) = if go {
+                ("go (+1)", "-1")
+            } else {
+                ("return (-1)", "+1")
+            };
             ctx.warn(
                 &rw.span,
                 format!(
@@ -723,7 +1002,10 @@ fn warn_windings(
             );
         }
         if rw.current.is_none() && swept != Some(i) {
-            ctx.warn(&rw.span, format!("winding `{}` has no `current`; it carries 0 A", w.name));
+            ctx.warn(
+                &rw.span,
+                format!("winding `{}` has no `current`; it carries 0 A", w.name),
+            );
         }
     }
 }

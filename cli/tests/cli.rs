@@ -1,0 +1,161 @@
+//! The `fluxwright` binary as a user runs it: exit codes, messages that name
+//! the culprit, and output directories that appear whole or not at all.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn fluxwright(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_fluxwright")).args(args).output().expect("the binary runs")
+}
+
+fn scratch(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("fluxwright-cli-test-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
+}
+
+/// A small gapped C-core (invented), meshed coarsely so the test is fast.
+const SMALL_CORE: &str = r#"
+[model]
+title = "small gapped core"
+depth = 20
+
+[mesh]
+max_size = 8
+
+[materials.iron]
+relative_permeability = 2000
+
+[windings.coil]
+turns = 100
+current = 1.5
+
+[[shape]]
+name = "core"
+material = "iron"
+polygon = [[0, 0], [40, 0], [40, 40], [0, 40], [0, 21], [10, 21], [10, 30], [30, 30], [30, 10], [10, 10], [10, 19], [0, 19]]
+mesh_size = 3
+
+[[shape]]
+name = "go"
+rectangle = { min = [12, 12], max = [18, 28] }
+winding = "coil"
+direction = 1
+
+[[shape]]
+name = "return"
+rectangle = { min = [42, 12], max = [48, 28] }
+winding = "coil"
+direction = -1
+
+[outer]
+shape = { rectangle = { min = [-40, -40], max = [90, 80] } }
+condition = "zero-potential"
+"#;
+
+#[test]
+fn check_accepts_a_good_model_and_prints_its_shapes() {
+    let dir = scratch("check-good");
+    let model = write(&dir, "core.toml", SMALL_CORE);
+    let out = fluxwright(&["check", model.to_str().unwrap()]);
+    assert!(out.status.success(), "stderr: {}", stderr(&out));
+    let text = String::from_utf8_lossy(&out.stdout);
+    for name in ["core", "go", "return", "iron", "coil", "the model is valid"] {
+        assert!(text.contains(name), "`{name}` missing from:\n{text}");
+    }
+}
+
+#[test]
+fn a_missing_model_file_is_exit_1_naming_the_file() {
+    let out = fluxwright(&["check", "no/such/model.toml"]);
+    assert_eq!(out.status.code(), Some(1));
+    assert!(stderr(&out).contains("no/such/model.toml"), "{}", stderr(&out));
+}
+
+#[test]
+fn a_misspelt_key_names_file_line_and_the_nearest_key() {
+    let dir = scratch("typo");
+    let text = SMALL_CORE.replace("relative_permeability = 2000", "relative_permability = 2000");
+    let model = write(&dir, "typo.toml", &text);
+    let out = fluxwright(&["check", model.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(1));
+    let err = stderr(&out);
+    let line = text.lines().position(|l| l.contains("relative_permability")).unwrap() + 1;
+    assert!(err.contains(&format!("typo.toml:{line}:")), "{err}");
+    assert!(err.contains("relative_permeability"), "no suggestion in: {err}");
+}
+
+#[test]
+fn a_failed_mesh_run_leaves_no_partial_result() {
+    let dir = scratch("bad-mesh");
+    let text = SMALL_CORE.replace("material = \"iron\"", "material = \"irn\"");
+    let model = write(&dir, "bad.toml", &text);
+    let out_dir = dir.join("out");
+    let out = fluxwright(&["mesh", model.to_str().unwrap(), "-o", out_dir.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(1));
+    assert!(stderr(&out).contains("irn"), "{}", stderr(&out));
+    assert!(!out_dir.join("mesh.json").exists());
+}
+
+#[test]
+fn usage_errors_exit_2() {
+    assert_eq!(fluxwright(&[]).status.code(), Some(2));
+    assert_eq!(fluxwright(&["mesh"]).status.code(), Some(2));
+    assert_eq!(fluxwright(&["frobnicate"]).status.code(), Some(2));
+}
+
+#[test]
+fn mesh_writes_json_vtu_and_png_with_exact_shape_areas() {
+    let dir = scratch("mesh-good");
+    let model = write(&dir, "core.toml", SMALL_CORE);
+    let out_dir = dir.join("out");
+    let out = fluxwright(&["mesh", model.to_str().unwrap(), "-o", out_dir.to_str().unwrap()]);
+    assert!(out.status.success(), "stderr: {}", stderr(&out));
+    let json: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out_dir.join("mesh.json")).unwrap()).unwrap();
+    assert_eq!(json["format"], "fluxwright-mesh/1");
+    assert!(json["min_angle_deg"].as_f64().unwrap() >= 25.0 - 1e-9);
+    // Exact areas of straight-sided shapes (plane geometry): the C-core is a
+    // 40×40 square less a 20×20 window and a 10×2 gap; the coil sides 6×16.
+    let area = |name: &str| json["shapes"][name]["area"].as_f64().unwrap();
+    assert!((area("core") - (1600.0 - 400.0 - 20.0)).abs() < 1e-9);
+    assert!((area("go") - 96.0).abs() < 1e-9);
+    assert!((area("return") - 96.0).abs() < 1e-9);
+    assert!((area("outer") - (130.0 * 120.0 - 1180.0 - 192.0)).abs() < 1e-7);
+    for file in ["mesh.vtu", "mesh.png"] {
+        assert!(std::fs::metadata(out_dir.join(file)).unwrap().len() > 1000, "{file}");
+    }
+    let vtu = std::fs::read_to_string(out_dir.join("mesh.vtu")).unwrap();
+    let triangles = json["triangles"].as_u64().unwrap();
+    assert!(vtu.contains(&format!("NumberOfCells=\"{triangles}\"")));
+    // Nothing of the staging folder is left behind.
+    let leftovers: Vec<_> = std::fs::read_dir(&out_dir)
+        .unwrap()
+        .filter_map(|e| e.ok())
+        .filter(|e| e.file_name().to_string_lossy().starts_with('.'))
+        .collect();
+    assert!(leftovers.is_empty());
+}
+
+#[test]
+fn demo_runs_and_can_save_its_model() {
+    let dir = scratch("demo");
+    let saved = dir.join("demo.toml");
+    let out_dir = dir.join("out");
+    let out = fluxwright(&["demo", "-o", out_dir.to_str().unwrap(), "--save-model", saved.to_str().unwrap()]);
+    assert!(out.status.success(), "stderr: {}", stderr(&out));
+    assert!(out_dir.join("mesh.json").exists());
+    let check = fluxwright(&["check", saved.to_str().unwrap()]);
+    assert!(check.status.success(), "stderr: {}", stderr(&check));
+}
