@@ -33,8 +33,16 @@ pub enum Command {
         #[arg(short, long, value_name = "DIR")]
         out: PathBuf,
     },
-    /// Run the built-in demo model (an invented door-holding electromagnet)
-    /// end to end and explain each number.
+    /// Mesh and solve a model; write results.json and fields.vtu (ParaView).
+    Solve {
+        /// The model file (.toml).
+        model: PathBuf,
+        /// Output directory (created if missing).
+        #[arg(short, long, value_name = "DIR")]
+        out: PathBuf,
+    },
+    /// Mesh and solve the built-in demo model (an invented door-holding
+    /// electromagnet), write every output and explain each number.
     Demo {
         /// Output directory (created if missing).
         #[arg(short, long, value_name = "DIR", default_value = "out/demo")]

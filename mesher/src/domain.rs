@@ -23,11 +23,21 @@ pub(crate) const ELEMENTS_ACROSS_FEATURE: f64 = 3.0;
 pub(crate) struct PolyLoop {
     pub points: Vec<Point>,
     pub seg: Vec<u32>,
+    /// Parameter of each point along its segment (0 at the segment's start).
+    pub param: Vec<f64>,
     /// Shape index, or [`OUTER_OWNER`].
     pub owner: u32,
     /// The largest element edge of the owner.
     pub own_size: f64,
     bbox: (Point, Point),
+}
+
+/// The point at parameter `t` of a segment.
+pub(crate) fn point_at(s: &Segment, t: f64) -> Point {
+    match *s {
+        Segment::Line { from, to } => [from[0] + t * (to[0] - from[0]), from[1] + t * (to[1] - from[1])],
+        Segment::Arc { center, radius, start, sweep } => polar(center, radius, start + t * sweep),
+    }
 }
 
 /// One input segment (line or arc) of some outline.
@@ -44,6 +54,8 @@ pub(crate) struct SegInfo {
 pub(crate) struct Domain {
     pub loops: Vec<PolyLoop>,
     pub segs: Vec<SegInfo>,
+    /// The exact curve of each segment (none for a fixed rim's chords).
+    pub curves: Vec<Option<Segment>>,
     /// Effective size of each shape (its mesh size, capped by `max_size`).
     pub shape_sizes: Vec<f64>,
     pub max_size: f64,
@@ -55,7 +67,7 @@ pub(crate) struct Domain {
 }
 
 impl PolyLoop {
-    pub(crate) fn new(points: Vec<Point>, seg: Vec<u32>, owner: u32, own_size: f64) -> PolyLoop {
+    pub(crate) fn new(points: Vec<Point>, seg: Vec<u32>, param: Vec<f64>, owner: u32, own_size: f64) -> PolyLoop {
         let mut lo = [f64::INFINITY; 2];
         let mut hi = [f64::NEG_INFINITY; 2];
         for p in &points {
@@ -64,7 +76,7 @@ impl PolyLoop {
                 hi[k] = hi[k].max(p[k]);
             }
         }
-        PolyLoop { points, seg, owner, own_size, bbox: (lo, hi) }
+        PolyLoop { points, seg, param, owner, own_size, bbox: (lo, hi) }
     }
 
     /// Ray-cast crossing parity of `p` (half-open rule on y).
@@ -100,6 +112,7 @@ impl Domain {
         let mut domain = Domain {
             loops: Vec::new(),
             segs: Vec::new(),
+            curves: Vec::new(),
             shape_sizes: shapes.iter().map(|s| s.1.min(max_size)).collect(),
             max_size,
             growth,
@@ -120,8 +133,10 @@ impl Domain {
             let n = l.segments.len() as u32;
             let mut points = Vec::new();
             let mut seg = Vec::new();
+            let mut param = Vec::new();
             for (k, s) in l.segments.iter().enumerate() {
                 let g = first + k as u32;
+                self.curves.push(Some(*s));
                 self.segs.push(SegInfo {
                     local,
                     prev: first + (k as u32 + n - 1) % n,
@@ -136,14 +151,12 @@ impl Domain {
                 };
                 for j in 0..pieces {
                     let t = j as f64 / pieces as f64;
-                    points.push(match *s {
-                        Segment::Line { from, to } => [from[0] + t * (to[0] - from[0]), from[1] + t * (to[1] - from[1])],
-                        Segment::Arc { center, radius, start, sweep } => polar(center, radius, start + t * sweep),
-                    });
+                    points.push(point_at(s, t));
                     seg.push(g);
+                    param.push(t);
                 }
             }
-            self.loops.push(PolyLoop::new(points, seg, owner, own_size));
+            self.loops.push(PolyLoop::new(points, seg, param, owner, own_size));
         }
     }
 
@@ -176,6 +189,56 @@ impl Domain {
             l if (l as usize) < self.shape_sizes.len() => self.shape_sizes[l as usize],
             _ => self.max_size,
         }
+    }
+
+    /// Add polyline points where a thin feature is sampled too coarsely to
+    /// be seen (two long parallel edges sampled only at their ends), and
+    /// return the final feature caps of [`Domain::feature_caps`].
+    pub(crate) fn refine_for_features(&mut self) -> Vec<Vec<f64>> {
+        for _round in 0..4 {
+            let caps = self.feature_caps();
+            if self.fixed_boundary {
+                return caps;
+            }
+            let mut changed = false;
+            for (l, cap) in self.loops.iter_mut().zip(&caps) {
+                let n = l.points.len();
+                let (mut points, mut seg, mut param) = (Vec::new(), Vec::new(), Vec::new());
+                for i in 0..n {
+                    points.push(l.points[i]);
+                    seg.push(l.seg[i]);
+                    param.push(l.param[i]);
+                    let j = (i + 1) % n;
+                    let feature = ELEMENTS_ACROSS_FEATURE * cap[i].min(cap[j]);
+                    let a = l.points[i];
+                    let b = l.points[j];
+                    let len = (b[0] - a[0]).hypot(b[1] - a[1]);
+                    let Some(curve) = self.curves[l.seg[i] as usize] else { continue };
+                    if !(feature.is_finite() && len > 1.5 * feature) {
+                        continue;
+                    }
+                    let t0 = l.param[i];
+                    let t1 = if l.seg[j] == l.seg[i] && l.param[j] > t0 { l.param[j] } else { 1.0 };
+                    // At most 8 pieces a round: thin spots are refined
+                    // progressively instead of the whole edge at once.
+                    let pieces = ((len / feature).ceil() as usize).min(8);
+                    for q in 1..pieces {
+                        let t = t0 + (t1 - t0) * q as f64 / pieces as f64;
+                        points.push(point_at(&curve, t));
+                        seg.push(l.seg[i]);
+                        param.push(t);
+                    }
+                    changed |= pieces > 1;
+                }
+                if points.len() != n {
+                    *l = PolyLoop::new(points, seg, param, l.owner, l.own_size);
+                }
+            }
+            if !changed {
+                return caps;
+            }
+        }
+        self.feature_caps()
     }
 
     /// Size cap from the local feature size at every vertex of every loop:

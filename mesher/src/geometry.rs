@@ -336,21 +336,34 @@ fn loop_contains(l: &Loop, p: Point) -> bool {
     // its ends is above p), so shared corners count once; arcs are cut into
     // pieces that are monotone in y for this.
     let mut inside = false;
-    let mut crossing = |a: Point, b: Point, x_at: &dyn Fn() -> f64| {
+    let crossing = |inside: &mut bool, a: Point, b: Point, x_at: &dyn Fn() -> f64| {
         if (a[1] > p[1]) != (b[1] > p[1]) && x_at() > p[0] {
-            inside = !inside;
+            *inside = !*inside;
         }
     };
     for s in &l.segments {
         match *s {
             Segment::Line { from, to } => {
-                crossing(from, to, &|| from[0] + (p[1] - from[1]) * (to[0] - from[0]) / (to[1] - from[1]));
+                crossing(&mut inside, from, to, &|| from[0] + (p[1] - from[1]) * (to[0] - from[0]) / (to[1] - from[1]));
+            }
+            Segment::Arc { center, radius, sweep, .. } if sweep.abs() >= std::f64::consts::TAU - 1e-12 => {
+                // A full circle: its two end angles round to different y, so
+                // count its two crossings directly.
+                let dy = p[1] - center[1];
+                if dy.abs() < radius {
+                    let dx = (radius * radius - dy * dy).sqrt();
+                    for x in [center[0] - dx, center[0] + dx] {
+                        if x > p[0] {
+                            inside = !inside;
+                        }
+                    }
+                }
             }
             Segment::Arc { center, radius, start, sweep } => {
                 for (a0, a1) in y_monotone_pieces(start, sweep) {
                     let (pa, pb) = (polar(center, radius, a0), polar(center, radius, a1));
                     let right_half = (0.5 * (a0 + a1)).cos() >= 0.0;
-                    crossing(pa, pb, &|| {
+                    crossing(&mut inside, pa, pb, &|| {
                         let dy = p[1] - center[1];
                         let dx = (radius * radius - dy * dy).max(0.0).sqrt();
                         if right_half {
@@ -412,5 +425,107 @@ fn check_finite(values: &[f64]) -> Result<(), GeometryError> {
         Ok(())
     } else {
         Err(GeometryError::NotFinite)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::f64::consts::PI;
+
+    // Exact areas below are the textbook formulas: circle πr², annulus
+    // π(R² − r²), annular sector ½θ(R² − r²), rectangle w·h (invariant
+    // under rotation).
+
+    #[test]
+    fn circle_area_is_pi_r_squared() {
+        let c = Outline::circle([3.0, -2.0], 2.5).unwrap();
+        assert!((c.area() - PI * 6.25).abs() < 1e-12);
+    }
+
+    #[test]
+    fn annulus_and_sector_areas() {
+        let ring = Outline::sector([1.0, 1.0], 2.0, 3.0, 0.0, 360.0).unwrap();
+        assert!((ring.area() - PI * (9.0 - 4.0)).abs() < 1e-12);
+        let s = Outline::sector([0.0, 0.0], 1.0, 4.0, 30.0, 120.0).unwrap();
+        assert!((s.area() - 0.5 * (PI / 2.0) * (16.0 - 1.0)).abs() < 1e-12);
+        let pie = Outline::sector([0.0, 0.0], 0.0, 2.0, -45.0, 200.0).unwrap();
+        assert!((pie.area() - 0.5 * 245f64.to_radians() * 4.0).abs() < 1e-12);
+        // A sector rotated and moved keeps its area.
+        let moved = s.rotated(33.0, [5.0, 1.0]).translated([-7.0, 2.0]);
+        assert!((moved.area() - s.area()).abs() < 1e-12);
+    }
+
+    #[test]
+    fn rotated_rectangle_area_and_containment() {
+        let r = Outline::rectangle([0.0, 0.0], [4.0, 1.0]).unwrap().rotated(30.0, [0.0, 0.0]);
+        assert!((r.area() - 4.0).abs() < 1e-12);
+        let (s, c) = 30f64.to_radians().sin_cos();
+        // The rectangle's centre (2, 0.5) rotated by 30°.
+        assert!(r.contains([2.0 * c - 0.5 * s, 2.0 * s + 0.5 * c]));
+        assert!(!r.contains([2.0, 0.0 - 0.6]));
+    }
+
+    #[test]
+    fn arc_containment_near_the_extremes() {
+        let c = Outline::circle([0.0, 0.0], 1.0).unwrap();
+        assert!(c.contains([0.0, 0.999]));
+        assert!(c.contains([0.0, -0.999]));
+        assert!(c.contains([0.999, 0.0]));
+        assert!(!c.contains([0.0, 1.001]));
+        assert!(!c.contains([-1.001, 0.0]));
+        // Half disc above the x axis, the ray passing through the corners.
+        let half = Outline::sector([0.0, 0.0], 0.0, 1.0, 0.0, 180.0).unwrap();
+        assert!(half.contains([0.2, 0.5]));
+        assert!(!half.contains([0.2, -0.5]));
+        let ring = Outline::sector([0.0, 0.0], 1.0, 2.0, 0.0, 360.0).unwrap();
+        assert!(!ring.contains([0.0, 0.0]));
+        assert!(ring.contains([0.0, 1.5]));
+        assert!(ring.contains([-1.5, 0.0]));
+    }
+
+    #[test]
+    fn bounding_box_of_arcs_is_exact() {
+        let s = Outline::sector([0.0, 0.0], 0.0, 2.0, 10.0, 100.0).unwrap();
+        let (lo, hi) = s.bounding_box();
+        assert!((hi[1] - 2.0).abs() < 1e-15, "top of the arc at 90°");
+        assert!((hi[0] - 2.0 * 10f64.to_radians().cos()).abs() < 1e-15);
+        assert!((lo[0] - 2.0 * 100f64.to_radians().cos()).abs() < 1e-15);
+        assert_eq!(lo[1], 0.0);
+    }
+
+    #[test]
+    fn validation_finds_crossings_and_gaps() {
+        // A bow tie crosses itself at (1, 1).
+        match Outline::polygon(&[[0.0, 0.0], [2.0, 2.0], [2.0, 0.0], [0.0, 2.0]]) {
+            Err(GeometryError::SelfIntersection(x, y)) => {
+                assert!((x - 1.0).abs() < 1e-9 && (y - 1.0).abs() < 1e-9);
+            }
+            other => panic!("expected a self-intersection, got {other:?}"),
+        }
+        // Two overlapping circles as loops of one outline.
+        let mut two = Outline::circle([0.0, 0.0], 1.0).unwrap();
+        two.loops.extend(Outline::circle([1.5, 0.0], 1.0).unwrap().loops);
+        assert!(matches!(two.validate(), Err(GeometryError::SelfIntersection(..))));
+        // Nested circles are a valid annulus.
+        let mut ring = Outline::circle([0.0, 0.0], 2.0).unwrap();
+        ring.loops.extend(Outline::circle([0.1, 0.0], 1.0).unwrap().loops);
+        assert!(ring.validate().is_ok());
+        assert!((ring.area() - PI * 3.0).abs() < 1e-12);
+        // An open loop is refused.
+        let open = Outline {
+            loops: vec![Loop {
+                segments: vec![
+                    Segment::Line { from: [0.0, 0.0], to: [1.0, 0.0] },
+                    Segment::Line { from: [1.0, 0.0], to: [1.0, 1.0] },
+                    Segment::Line { from: [1.0, 1.0], to: [0.1, 0.0] },
+                ],
+            }],
+        };
+        assert!(open.validate().is_err());
+        // A polygon touching itself at a vertex is refused.
+        let touch = Outline::polygon(&[[0.0, 0.0], [2.0, 0.0], [1.0, 1.0], [2.0, 2.0], [0.0, 2.0], [1.0, 1.0]]);
+        assert!(touch.is_err());
+        assert!(matches!(Outline::polygon(&[[0.0, 0.0], [f64::NAN, 0.0], [1.0, 1.0]]), Err(GeometryError::NotFinite)));
     }
 }

@@ -227,7 +227,7 @@ impl<'a> Refiner<'a> {
                 }
                 continue;
             }
-            if let Some(f) = self.faces.pop_front() {
+            if let Some(f) = self.faces.pop_back() {
                 self.refine_face(f);
                 continue;
             }
@@ -530,11 +530,20 @@ impl<'a> Refiner<'a> {
                     return false;
                 }
             };
-            let ok1 = !self.cdt.try_add_constraint(a, v).is_empty();
-            let ok2 = !self.cdt.try_add_constraint(v, b).is_empty();
-            if !(ok1 && ok2) {
-                self.broken = true;
-                return false;
+            for (from, to) in [(a, v), (v, b)] {
+                if self.cdt.try_add_constraint(from, to).is_empty() {
+                    // A nearly collinear constraint is in the way: split
+                    // both where they cross rather than lose either.
+                    let field = self.field;
+                    let made = self.cdt.add_constraint_and_split(from, to, |p| {
+                        let (h, bg) = field.size_at(pt(p), 0);
+                        MeshVertex { pos: p, h, bg, pv: NONE, ends: [NONE; 2] }
+                    });
+                    if made.is_empty() {
+                        self.broken = true;
+                        return false;
+                    }
+                }
             }
             v
         };

@@ -58,6 +58,8 @@ pub(crate) struct Pslg {
 pub(crate) struct SizeField {
     bg: Bg,
     face_label: Vec<u32>,
+    /// Allowed growth of the size per unit length, `growth − 1`.
+    slope: f64,
     /// Whether any background face inside the convex hull lies outside the
     /// outer outline (non-convex domain or holes).
     pub has_outside: bool,
@@ -88,13 +90,12 @@ fn tri_err(e: spade::InsertionError) -> MeshError {
 
 impl SizeField {
     /// Build the background and the PSLG from the domain.
-    pub(crate) fn build(domain: &Domain, min_angle_deg: f64) -> Result<(SizeField, Pslg), MeshError> {
-        let caps = domain.feature_caps();
+    pub(crate) fn build(domain: &Domain, caps: &[Vec<f64>], min_angle_deg: f64) -> Result<(SizeField, Pslg), MeshError> {
         let mut bg = Bg::new();
         let mut cap_of: Vec<f64> = Vec::new();
         let mut handles: Vec<Vec<FixedVertexHandle>> = Vec::with_capacity(domain.loops.len());
         let mut last: Option<FixedVertexHandle> = None;
-        for (l, cap) in domain.loops.iter().zip(&caps) {
+        for (l, cap) in domain.loops.iter().zip(caps) {
             let mut hs = Vec::with_capacity(l.points.len());
             for (p, &c) in l.points.iter().zip(cap) {
                 let v = BgVertex { pos: p2(*p), h: f64::INFINITY };
@@ -169,7 +170,7 @@ impl SizeField {
         cap_of.resize(bg.num_vertices(), f64::INFINITY);
 
         let face_label = label_components(&bg, |p| domain.classify(p));
-        let mut field = SizeField { has_outside: false, face_label, bg };
+        let mut field = SizeField { has_outside: false, face_label, bg, slope: domain.growth - 1.0 };
         field.has_outside = field.bg.inner_faces().any(|f| field.face_label[f.fix().index()] == OUTSIDE);
 
         // Initial sizes: the smallest region size around each vertex.
@@ -185,8 +186,14 @@ impl SizeField {
             }
             h[i] = if m.is_finite() { m } else { domain.max_size };
         }
-        // Grading: multi-source Dijkstra with edge cost (growth − 1)·length.
+        // Grading: multi-source Dijkstra over the background edges, each
+        // vertex remembering which start vertex its size comes from, so the
+        // cone h0(s) + (growth − 1)·|x − s| is measured in a straight line
+        // rather than along the edges.
         let slope = domain.growth - 1.0;
+        let h0 = h.clone();
+        let pos: Vec<Point2<f64>> = field.bg.vertices().map(|v| v.position()).collect();
+        let mut src: Vec<u32> = (0..nv as u32).collect();
         let mut heap: BinaryHeap<HeapItem> = (0..nv).map(|i| HeapItem(h[i], i as u32)).collect();
         let mut done = vec![false; nv];
         while let Some(HeapItem(hv, v)) = heap.pop() {
@@ -194,13 +201,18 @@ impl SizeField {
                 continue;
             }
             done[v as usize] = true;
+            let s = src[v as usize] as usize;
             let vh = field.bg.vertex(FixedVertexHandle::from_index(v as usize));
             for e in vh.out_edges() {
-                let u = e.to();
-                let ui = u.fix().index();
-                let cand = hv + slope * e.length_2().sqrt();
+                let ui = e.to().fix().index();
+                if done[ui] {
+                    continue;
+                }
+                let (a, b) = (pos[s], pos[ui]);
+                let cand = h0[s] + slope * (a.x - b.x).hypot(a.y - b.y);
                 if cand < h[ui] {
                     h[ui] = cand;
+                    src[ui] = s as u32;
                     heap.push(HeapItem(cand, ui as u32));
                 }
             }
@@ -263,7 +275,15 @@ impl SizeField {
                 }
                 let lo = vs.iter().map(|v| v.data().h).fold(f64::INFINITY, f64::min);
                 let hi = vs.iter().map(|v| v.data().h).fold(0.0, f64::max);
-                (h.clamp(lo, hi), vs[0].fix().index() as u32)
+                // Linear interpolation can grow faster than the grading
+                // allows inside a long thin background triangle; the cones
+                // of its corners bound it.
+                let mut h = h.clamp(lo, hi);
+                for v in vs {
+                    let q = v.position();
+                    h = h.min(v.data().h + self.slope * (q.x - p[0]).hypot(q.y - p[1]));
+                }
+                (h, vs[0].fix().index() as u32)
             }
             PositionInTriangulation::OnEdge(e) => {
                 let e = self.bg.directed_edge(e);

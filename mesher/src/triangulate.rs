@@ -132,7 +132,7 @@ pub fn mesh(input: &MeshInput) -> Result<Mesh, MeshError> {
     }
     let shapes: Vec<(&Outline, f64)> = input.shapes.iter().map(|s| (&s.outline, s.mesh_size)).collect();
     let domain = Domain::from_outlines(&input.outer, &shapes, input.max_size, input.growth, input.chord_fraction);
-    run(&domain, input.min_angle_deg, input.max_triangles, start)
+    run(domain, input.min_angle_deg, input.max_triangles, start)
 }
 
 fn perimeter(o: &Outline) -> f64 {
@@ -193,8 +193,9 @@ pub fn mesh_disc_with_fixed_rim(
         .map(|i| SegInfo { local: i, prev: (i + n as u32 - 1) % n as u32, next: (i + 1) % n as u32 })
         .collect();
     let domain = Domain {
-        loops: vec![PolyLoop::new(rim_points.to_vec(), (0..n as u32).collect(), OUTER_OWNER, max_size)],
+        loops: vec![PolyLoop::new(rim_points.to_vec(), (0..n as u32).collect(), vec![0.0; n], OUTER_OWNER, max_size)],
         segs,
+        curves: vec![None; n],
         shape_sizes: Vec::new(),
         max_size,
         growth,
@@ -208,7 +209,7 @@ pub fn mesh_disc_with_fixed_rim(
     if !(rough <= 5.0e7) || !(smallest > 0.0) {
         return Err(MeshError::TooLarge { estimated_triangles: rough, limit: 5.0e7 });
     }
-    run(&domain, min_angle_deg, 50_000_000, start)
+    run(domain, min_angle_deg, 50_000_000, start)
 }
 
 /// Cut one PSLG edge `a -> b` so that each piece is about the local size.
@@ -246,8 +247,10 @@ fn split_points(field: &SizeField, a: Point, b: Point, hint: u32) -> Vec<Point> 
         .collect()
 }
 
-fn run(domain: &Domain, min_angle_deg: f64, max_triangles: usize, start: Instant) -> Result<Mesh, MeshError> {
-    let (field, pslg) = SizeField::build(domain, min_angle_deg)?;
+fn run(mut domain: Domain, min_angle_deg: f64, max_triangles: usize, start: Instant) -> Result<Mesh, MeshError> {
+    let caps = domain.refine_for_features();
+    let domain = &domain;
+    let (field, pslg) = SizeField::build(domain, &caps, min_angle_deg)?;
     let estimate = field.estimate_triangles();
     let limit = max_triangles as f64;
     if !(estimate <= limit) {

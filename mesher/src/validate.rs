@@ -52,9 +52,6 @@ pub(crate) fn validate_outline(outline: &Outline) -> Result<(), GeometryError> {
             }
         }
     }
-    if !(outline.area() > 0.0) {
-        return Err(GeometryError::NoArea);
-    }
     // Crossing test on finely cut polylines: any two edges may share a point
     // only when they are consecutive in one loop (their common corner).
     let polys = outline.polylines(TEST_CHORD_FRACTION);
@@ -100,6 +97,9 @@ pub(crate) fn validate_outline(outline: &Outline) -> Result<(), GeometryError> {
         if let Some(p) = found {
             return Err(GeometryError::SelfIntersection(p[0], p[1]));
         }
+    }
+    if !(outline.area() > 0.0) {
+        return Err(GeometryError::NoArea);
     }
     Ok(())
 }

@@ -8,8 +8,8 @@
 //! triplet list is rebuilt and no sparse matrix is reallocated.
 
 use crate::boundary::{Constraints, DofTarget};
-use crate::fe::{self, packed_index, packed_len, ElementLoad, ElementOrder, Triangle, MAX_LOCAL};
 use crate::fe::quadrature::TriangleRule;
+use crate::fe::{self, packed_index, packed_len, ElementLoad, ElementOrder, Triangle, MAX_LOCAL};
 use crate::problem::{Problem, SolveError};
 use fluxwright_mesher::Mesh;
 use rayon::prelude::*;
@@ -42,7 +42,14 @@ impl DofMap {
         match order {
             ElementOrder::P1 => {
                 let element_dofs = mesh.triangles.iter().flatten().copied().collect();
-                DofMap { order, n_dofs: n_nodes, n_nodes, element_dofs, coords, edges: Vec::new() }
+                DofMap {
+                    order,
+                    n_dofs: n_nodes,
+                    n_nodes,
+                    element_dofs,
+                    coords,
+                    edges: Vec::new(),
+                }
             }
             ElementOrder::P2 => {
                 let topo = mesh.edge_topology();
@@ -55,7 +62,14 @@ impl DofMap {
                     element_dofs.extend_from_slice(tri);
                     element_dofs.extend(te.iter().map(|&e| n_nodes as u32 + e));
                 }
-                DofMap { order, n_dofs: n_nodes + topo.edges.len(), n_nodes, element_dofs, coords, edges: topo.edges }
+                DofMap {
+                    order,
+                    n_dofs: n_nodes + topo.edges.len(),
+                    n_nodes,
+                    element_dofs,
+                    coords,
+                    edges: topo.edges,
+                }
             }
         }
     }
@@ -70,7 +84,10 @@ impl DofMap {
     /// edge exists.
     pub fn edge_dof(&self, a: u32, b: u32) -> Option<u32> {
         let key = if a < b { [a, b] } else { [b, a] };
-        self.edges.binary_search(&key).ok().map(|e| (self.n_nodes + e) as u32)
+        self.edges
+            .binary_search(&key)
+            .ok()
+            .map(|e| (self.n_nodes + e) as u32)
     }
 }
 
@@ -96,18 +113,21 @@ impl SparsityPattern {
     /// Slot of entry (row, col), row ≤ col, if stored.
     pub fn position(&self, row: usize, col: usize) -> Option<usize> {
         let range = self.col_ptr[col]..self.col_ptr[col + 1];
-        self.row_idx[range.clone()].binary_search(&row).ok().map(|k| range.start + k)
+        self.row_idx[range.clone()]
+            .binary_search(&row)
+            .ok()
+            .map(|k| range.start + k)
     }
 
     /// y = A x with the symmetric matrix whose upper triangle holds `values`.
     pub fn sym_mul(&self, values: &[f64], x: &[f64], y: &mut [f64]) {
         y.fill(0.0);
         for col in 0..self.n {
-            for k in self.col_ptr[col]..self.col_ptr[col + 1] {
-                let row = self.row_idx[k];
-                y[row] += values[k] * x[col];
+            let range = self.col_ptr[col]..self.col_ptr[col + 1];
+            for (&row, &v) in self.row_idx[range.clone()].iter().zip(&values[range]) {
+                y[row] += v * x[col];
                 if row != col {
-                    y[col] += values[k] * x[row];
+                    y[col] += v * x[row];
                 }
             }
         }
@@ -150,22 +170,39 @@ impl<'p> Assembler<'p> {
         let n_pairs = packed_len(n_loc);
         let n_tri = mesh.triangles.len();
         let last = problem.regions.len() - 1;
-        let region_slot =
-            mesh.regions.iter().map(|&r| if r == Mesh::OUTER_REGION { last as u32 } else { r }).collect();
+        let region_slot = mesh
+            .regions
+            .iter()
+            .map(|&r| {
+                if r == Mesh::OUTER_REGION {
+                    last as u32
+                } else {
+                    r
+                }
+            })
+            .collect();
         let s = problem.length_scale_m;
         let triangles = mesh
             .triangles
             .par_iter()
-            .map(|t| Triangle::new(t.map(|i| {
-                let p = mesh.nodes[i as usize];
-                [p[0] * s, p[1] * s]
-            })))
+            .map(|t| {
+                Triangle::new(t.map(|i| {
+                    let p = mesh.nodes[i as usize];
+                    [p[0] * s, p[1] * s]
+                }))
+            })
             .collect();
         // Reduced (row, col, factor) of every local pair.
         let reduced = |t: usize, a: usize, b: usize| -> Option<(u32, u32, i8)> {
             let d = dofs.element(t);
-            match (constraints.target[d[a] as usize], constraints.target[d[b] as usize]) {
-                (DofTarget::Free { index: i, sign: si }, DofTarget::Free { index: j, sign: sj }) => {
+            match (
+                constraints.target[d[a] as usize],
+                constraints.target[d[b] as usize],
+            ) {
+                (
+                    DofTarget::Free { index: i, sign: si },
+                    DofTarget::Free { index: j, sign: sj },
+                ) => {
                     let mult = if a != b && i == j { 2 } else { 1 };
                     Some((i.min(j), i.max(j), (si * sj) as i8 * mult))
                 }
@@ -175,9 +212,11 @@ impl<'p> Assembler<'p> {
         let mut keys: Vec<u64> = (0..n_tri)
             .into_par_iter()
             .flat_map_iter(|t| {
-                (0..n_loc).flat_map(move |a| (a..n_loc).map(move |b| (a, b))).filter_map(move |(a, b)| {
-                    reduced(t, a, b).map(|(row, col, _)| ((col as u64) << 32) | row as u64)
-                })
+                (0..n_loc)
+                    .flat_map(move |a| (a..n_loc).map(move |b| (a, b)))
+                    .filter_map(move |(a, b)| {
+                        reduced(t, a, b).map(|(row, col, _)| ((col as u64) << 32) | row as u64)
+                    })
             })
             .collect();
         keys.par_sort_unstable();
@@ -192,21 +231,31 @@ impl<'p> Assembler<'p> {
         for c in 0..n {
             col_ptr[c + 1] += col_ptr[c];
         }
-        let pattern = SparsityPattern { n, col_ptr, row_idx };
+        let pattern = SparsityPattern {
+            n,
+            col_ptr,
+            row_idx,
+        };
         let mut scatter = vec![u32::MAX; n_tri * n_pairs];
         let mut factor = vec![0i8; n_tri * n_pairs];
-        scatter.par_chunks_mut(n_pairs).zip(factor.par_chunks_mut(n_pairs)).enumerate().for_each(|(t, (sc, fa))| {
-            for a in 0..n_loc {
-                for b in a..n_loc {
-                    if let Some((row, col, f)) = reduced(t, a, b) {
-                        let k = packed_index(n_loc, a, b);
-                        // Every reduced pair was inserted above.
-                        sc[k] = pattern.position(row as usize, col as usize).map_or(u32::MAX, |p| p as u32);
-                        fa[k] = f;
+        scatter
+            .par_chunks_mut(n_pairs)
+            .zip(factor.par_chunks_mut(n_pairs))
+            .enumerate()
+            .for_each(|(t, (sc, fa))| {
+                for a in 0..n_loc {
+                    for b in a..n_loc {
+                        if let Some((row, col, f)) = reduced(t, a, b) {
+                            let k = packed_index(n_loc, a, b);
+                            // Every reduced pair was inserted above.
+                            sc[k] = pattern
+                                .position(row as usize, col as usize)
+                                .map_or(u32::MAX, |p| p as u32);
+                            fa[k] = f;
+                        }
                     }
                 }
-            }
-        });
+            });
         Ok(Assembler {
             problem,
             dofs,
@@ -239,7 +288,8 @@ impl<'p> Assembler<'p> {
     /// A full dof vector with the fixed values in place and zero elsewhere.
     pub fn initial_potential(&self) -> Vec<f64> {
         let mut u = vec![0.0; self.dofs.n_dofs];
-        self.constraints.expand(&vec![0.0; self.constraints.n_free], &mut u);
+        self.constraints
+            .expand(&vec![0.0; self.constraints.n_free], &mut u);
         u
     }
 
@@ -259,6 +309,11 @@ impl<'p> Assembler<'p> {
         let mut k_buf = vec![0.0; CHUNK * n_pairs];
         let mut r_buf = vec![0.0; CHUNK * n_loc];
         let source = self.problem.source.as_deref();
+        let kind = fe::ElementKind {
+            order: self.problem.order,
+            symmetry: self.problem.symmetry,
+            rule: &self.rule,
+        };
         for start in (0..n_tri).step_by(CHUNK) {
             let end = (start + CHUNK).min(n_tri);
             let len = end - start;
@@ -275,7 +330,7 @@ impl<'p> Assembler<'p> {
                     source: source.map(|s| (s, &self.source_rule)),
                     length_scale_m: self.problem.length_scale_m,
                 };
-                fe::element_system(&self.triangles[t], self.problem.order, self.problem.symmetry, &self.rule, &load, &ul, r, k);
+                fe::element_system(&self.triangles[t], &kind, &load, &ul, r, k);
             };
             let rs = &mut r_buf[..len * n_loc];
             if want_tangent {
@@ -285,13 +340,16 @@ impl<'p> Assembler<'p> {
                     .enumerate()
                     .for_each(|(i, (r, k))| kernel(start + i, r, Some(k)));
             } else {
-                rs.par_chunks_mut(n_loc).enumerate().for_each(|(i, r)| kernel(start + i, r, None));
+                rs.par_chunks_mut(n_loc)
+                    .enumerate()
+                    .for_each(|(i, r)| kernel(start + i, r, None));
             }
             for i in 0..len {
                 let t = start + i;
                 let d = self.dofs.element(t);
                 for a in 0..n_loc {
-                    if let DofTarget::Free { index, sign } = self.constraints.target[d[a] as usize] {
+                    if let DofTarget::Free { index, sign } = self.constraints.target[d[a] as usize]
+                    {
                         residual[index as usize] += sign * r_buf[i * n_loc + a];
                     }
                 }

@@ -6,6 +6,19 @@
 //! expressing each constrained ("slave") dof as ± its partner ("master"), so
 //! the reduced matrix stays symmetric positive definite and needs no
 //! multipliers. Flux-normal is the natural condition and needs nothing.
+//!
+//! When nothing fixes the additive constant of the potential (every edge
+//! flux-normal or periodic, no anti-periodic pair), one dof is pinned to 0,
+//! which changes no flux density.
+//!
+//! **Not implemented yet: the open boundary (Kelvin transformation).** The
+//! plan: mesh an extra disc (the image of the exterior) whose rim nodes
+//! coincide with the outer circle's nodes, tie those pairs like a periodic
+//! pair, and assemble the plain ν0 Laplacian on the disc (planar: the
+//! Laplacian is conformally invariant in 2D, so the mapped exterior needs no
+//! modified coefficient); the axisymmetric exterior needs a modified,
+//! non-conformal form that is still to be derived. Until then a large
+//! zero-potential boundary stands in for an open one.
 
 use crate::assembly::DofMap;
 use crate::fe::Symmetry;
@@ -15,7 +28,7 @@ use std::collections::BTreeMap;
 /// What a degree of freedom is in the reduced system.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum DofTarget {
-    /// u = sign · x[index] for reduced unknown `index`.
+    /// u = sign · x_index for reduced unknown `index`.
     Free {
         /// Index into the reduced unknowns.
         index: u32,
@@ -73,8 +86,20 @@ impl Constraints {
                 }
             }
         }
+        // A periodic partner takes its values from the pair, not from the
+        // default condition (an explicit condition on it still holds).
+        let partners: std::collections::HashSet<u32> = problem
+            .boundary
+            .segments
+            .iter()
+            .filter_map(|(_, c)| partner(c))
+            .collect();
         let mut pairs = Vec::new();
         for (&segment, edges) in &by_segment {
+            let explicit = problem.boundary.segments.iter().any(|(s, _)| *s == segment);
+            if partners.contains(&segment) && !explicit {
+                continue;
+            }
             let condition = problem.boundary.condition(segment);
             match condition {
                 EdgeCondition::ZeroPotential => {
@@ -116,7 +141,11 @@ impl Constraints {
                 return Err(SolveError::UnknownSegment { segment: partner });
             };
             let links = match_segments(problem, dofs, &by_segment[&segment], master_edges)
-                .map_err(|reason| SolveError::PeriodicMismatch { segment, partner, reason })?;
+                .map_err(|reason| SolveError::PeriodicMismatch {
+                    segment,
+                    partner,
+                    reason,
+                })?;
             for (slave, master) in links {
                 if let Raw::Free = raw[slave as usize] {
                     raw[slave as usize] = Raw::Link(master, sign);
@@ -128,7 +157,10 @@ impl Constraints {
 
     /// Number of fixed dofs.
     pub fn n_fixed(&self) -> usize {
-        self.target.iter().filter(|t| matches!(t, DofTarget::Fixed(_))).count()
+        self.target
+            .iter()
+            .filter(|t| matches!(t, DofTarget::Fixed(_)))
+            .count()
     }
 
     /// Full dof vector from reduced unknowns `x`.
@@ -144,14 +176,20 @@ impl Constraints {
 
 fn partner(c: &EdgeCondition) -> Option<u32> {
     match *c {
-        EdgeCondition::Periodic { partner } | EdgeCondition::AntiPeriodic { partner } => Some(partner),
+        EdgeCondition::Periodic { partner } | EdgeCondition::AntiPeriodic { partner } => {
+            Some(partner)
+        }
         _ => None,
     }
 }
 
 /// All dofs on the given boundary edges (vertices and, for P2, midpoints).
 fn edge_dofs<'a>(dofs: &'a DofMap, edges: &'a [[u32; 2]]) -> impl Iterator<Item = u32> + 'a {
-    edges.iter().flat_map(move |&[a, b]| [Some(a), Some(b), dofs.edge_dof(a, b)].into_iter().flatten())
+    edges.iter().flat_map(move |&[a, b]| {
+        [Some(a), Some(b), dofs.edge_dof(a, b)]
+            .into_iter()
+            .flatten()
+    })
 }
 
 /// Ends of the chain formed by a segment's edges (each `[from, to]`, in
@@ -172,12 +210,21 @@ fn chain_ends(edges: &[[u32; 2]]) -> Result<(u32, u32), String> {
 /// reverse order (the usual case: two sides of a sector or the left and
 /// right of a strip, traversed in opposite directions around the outline),
 /// then in the same order.
-fn match_segments(problem: &Problem<'_>, dofs: &DofMap, slave: &[[u32; 2]], master: &[[u32; 2]]) -> Result<Vec<(u32, u32)>, String> {
+fn match_segments(
+    problem: &Problem<'_>,
+    dofs: &DofMap,
+    slave: &[[u32; 2]],
+    master: &[[u32; 2]],
+) -> Result<Vec<(u32, u32)>, String> {
     let nodes = &problem.mesh.nodes;
     let (a, b) = chain_ends(slave)?;
     let (c, d) = chain_ends(master)?;
     if slave.len() != master.len() {
-        return Err(format!("{} mesh edges against {} on the partner: the meshes of the two stretches must match", slave.len(), master.len()));
+        return Err(format!(
+            "{} mesh edges against {} on the partner: the meshes of the two stretches must match",
+            slave.len(),
+            master.len()
+        ));
     }
     let p = |i: u32| nodes[i as usize];
     let length = dist(p(a), p(b));
@@ -221,7 +268,10 @@ fn match_segments(problem: &Problem<'_>, dofs: &DofMap, slave: &[[u32; 2]], mast
         }
         let mut links: Vec<(u32, u32)> = node_map.iter().map(|(&s, &m)| (s, m)).collect();
         for &[s0, s1] in slave {
-            if let (Some(e), Some(f)) = (dofs.edge_dof(s0, s1), dofs.edge_dof(node_map[&s0], node_map[&s1])) {
+            if let (Some(e), Some(f)) = (
+                dofs.edge_dof(s0, s1),
+                dofs.edge_dof(node_map[&s0], node_map[&s1]),
+            ) {
                 links.push((e, f));
             }
         }
@@ -252,8 +302,15 @@ fn resolve(raw: &[Raw], problem: &Problem<'_>, dofs: &DofMap) -> Constraints {
             if chain.iter().any(|&(c, _)| c == d) {
                 // A cycle: consistent (+) leaves d free, inconsistent (−)
                 // forces 0.
-                let s_at_d = chain.iter().find(|&&(c, _)| c == d).map_or(1.0, |&(_, s)| s);
-                break if sign == s_at_d { Ok((d, s_at_d)) } else { Err(0.0) };
+                let s_at_d = chain
+                    .iter()
+                    .find(|&&(c, _)| c == d)
+                    .map_or(1.0, |&(_, s)| s);
+                break if sign == s_at_d {
+                    Ok((d, s_at_d))
+                } else {
+                    Err(0.0)
+                };
             }
             chain.push((d, sign));
             match raw[d as usize] {
@@ -310,5 +367,9 @@ fn resolve(raw: &[Raw], problem: &Problem<'_>, dofs: &DofMap) -> Constraints {
             }
         });
     }
-    Constraints { target, n_free: n_free as usize, pinned: pin.is_some() }
+    Constraints {
+        target,
+        n_free: n_free as usize,
+        pinned: pin.is_some(),
+    }
 }

@@ -54,13 +54,25 @@ pub struct Solution<'p> {
 
 impl std::fmt::Debug for Solution<'_> {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.debug_struct("Solution").field("dofs", &self.potential.len()).field("report", &self.report).finish()
+        f.debug_struct("Solution")
+            .field("dofs", &self.potential.len())
+            .field("report", &self.report)
+            .finish()
     }
 }
 
 impl<'p> Solution<'p> {
-    pub(crate) fn new(assembler: Assembler<'p>, potential: Vec<f64>, report: NewtonReport) -> Solution<'p> {
-        Solution { assembler, potential, report, locator: OnceLock::new() }
+    pub(crate) fn new(
+        assembler: Assembler<'p>,
+        potential: Vec<f64>,
+        report: NewtonReport,
+    ) -> Solution<'p> {
+        Solution {
+            assembler,
+            potential,
+            report,
+            locator: OnceLock::new(),
+        }
     }
 
     /// The potential at every dof, Wb/m.
@@ -97,7 +109,12 @@ impl<'p> Solution<'p> {
         let ul = self.local(t);
         let b = basis.flux_density(&ul);
         let h = self.assembler.region_props(t).material.at(b).h;
-        PointField { triangle: t, potential: basis.potential(&ul), b, h }
+        PointField {
+            triangle: t,
+            potential: basis.potential(&ul),
+            b,
+            h,
+        }
     }
 
     /// The field at the centroid of every triangle.
@@ -107,7 +124,12 @@ impl<'p> Solution<'p> {
             .map(|t| {
                 let f = self.field_in(t, [1.0 / 3.0; 3]);
                 let m = self.assembler.region_props(t).material.at(f.b);
-                ElementField { b: f.b, h: f.h, b_magnitude: f.b_magnitude(), mu_r: NU0 / m.nu }
+                ElementField {
+                    b: f.b,
+                    h: f.h,
+                    b_magnitude: f.b_magnitude(),
+                    mu_r: NU0 / m.nu,
+                }
             })
             .collect()
     }
@@ -126,7 +148,10 @@ impl<'p> Solution<'p> {
         self.locate(p).map(|(t, l)| self.field_in(t, l))
     }
 
-    fn integrate(&self, density: impl Fn(&crate::material::Material, [f64; 2]) -> f64 + Sync) -> f64 {
+    fn integrate(
+        &self,
+        density: impl Fn(&crate::material::Material, [f64; 2]) -> f64 + Sync,
+    ) -> f64 {
         let p = self.assembler.problem();
         let rule = crate::fe::element_rule(p.order, p.symmetry);
         let n_tri = p.mesh.triangles.len();
@@ -141,7 +166,9 @@ impl<'p> Solution<'p> {
                     .zip(&rule.weights)
                     .map(|(l, w)| {
                         let basis = self.basis(t, *l);
-                        w * tri.area * basis.volume_factor * density(material, basis.flux_density(&ul))
+                        w * tri.area
+                            * basis.volume_factor
+                            * density(material, basis.flux_density(&ul))
                     })
                     .sum::<f64>()
             })
@@ -213,10 +240,21 @@ impl Locator {
         // About one triangle per bucket.
         let side = (n_tri as f64).sqrt().ceil().max(1.0) as usize;
         let dims = [side, side];
-        let cell = [((hi[0] - lo[0]) / side as f64).max(f64::MIN_POSITIVE), ((hi[1] - lo[1]) / side as f64).max(f64::MIN_POSITIVE)];
-        let mut loc = Locator { origin: lo, cell, dims, start: Vec::new(), items: Vec::new() };
+        let cell = [
+            ((hi[0] - lo[0]) / side as f64).max(f64::MIN_POSITIVE),
+            ((hi[1] - lo[1]) / side as f64).max(f64::MIN_POSITIVE),
+        ];
+        let mut loc = Locator {
+            origin: lo,
+            cell,
+            dims,
+            start: Vec::new(),
+            items: Vec::new(),
+        };
         let mut count = vec![0u32; side * side + 1];
-        let ranges: Vec<([usize; 2], [usize; 2])> = (0..n_tri).map(|t| loc.cell_range(asm.triangle(t).vertices)).collect();
+        let ranges: Vec<([usize; 2], [usize; 2])> = (0..n_tri)
+            .map(|t| loc.cell_range(asm.triangle(t).vertices))
+            .collect();
         for (a, b) in &ranges {
             for j in a[1]..=b[1] {
                 for i in a[0]..=b[0] {
@@ -253,15 +291,21 @@ impl Locator {
     }
 
     fn cell_range(&self, v: [[f64; 2]; 3]) -> ([usize; 2], [usize; 2]) {
-        let lo = [v[0][0].min(v[1][0]).min(v[2][0]), v[0][1].min(v[1][1]).min(v[2][1])];
-        let hi = [v[0][0].max(v[1][0]).max(v[2][0]), v[0][1].max(v[1][1]).max(v[2][1])];
+        let lo = [
+            v[0][0].min(v[1][0]).min(v[2][0]),
+            v[0][1].min(v[1][1]).min(v[2][1]),
+        ];
+        let hi = [
+            v[0][0].max(v[1][0]).max(v[2][0]),
+            v[0][1].max(v[1][1]).max(v[2][1]),
+        ];
         (self.cell_of(lo), self.cell_of(hi))
     }
 
     fn locate(&self, asm: &Assembler<'_>, p: [f64; 2]) -> Option<(usize, [f64; 3])> {
-        for k in 0..2 {
+        for (k, &x) in p.iter().enumerate() {
             let span = self.cell[k] * self.dims[k] as f64;
-            if p[k] < self.origin[k] - 1e-9 * span || p[k] > self.origin[k] + span * (1.0 + 1e-9) {
+            if x < self.origin[k] - 1e-9 * span || x > self.origin[k] + span * (1.0 + 1e-9) {
                 return None;
             }
         }
@@ -276,6 +320,7 @@ impl Locator {
             }
         }
         // Accept points on edges up to rounding.
-        best.filter(|&(_, _, w)| w >= -1e-10).map(|(t, l, _)| (t, l))
+        best.filter(|&(_, _, w)| w >= -1e-10)
+            .map(|(t, l, _)| (t, l))
     }
 }

@@ -15,3 +15,4 @@ pub mod linear;
 pub mod material;
 pub mod nonlinear;
 pub mod problem;
+pub mod study;

@@ -11,7 +11,8 @@ use crate::assembly::SparsityPattern;
 use faer::dyn_stack::{MemBuffer, MemStack};
 use faer::linalg::cholesky::llt::factor::LltParams;
 use faer::sparse::linalg::cholesky::{
-    factorize_symbolic_cholesky, CholeskySymbolicParams, LltRef, SymbolicCholesky, SymmetricOrdering,
+    factorize_symbolic_cholesky, CholeskySymbolicParams, LltRef, SymbolicCholesky,
+    SymmetricOrdering,
 };
 use faer::sparse::{SparseColMatRef, SymbolicSparseColMatRef};
 use faer::{Conj, MatMut, Par, Side, Spec};
@@ -85,7 +86,14 @@ impl Default for FaerCholesky {
 impl FaerCholesky {
     /// A solver running its numeric phase with parallelism `par`.
     pub fn new(par: Par) -> FaerCholesky {
-        FaerCholesky { par, pattern: None, symbolic: None, factor_values: Vec::new(), factored: false, scratch: None }
+        FaerCholesky {
+            par,
+            pattern: None,
+            symbolic: None,
+            factor_values: Vec::new(),
+            factored: false,
+            scratch: None,
+        }
     }
 
     /// Number of stored entries of the Cholesky factor (after analysis).
@@ -96,14 +104,26 @@ impl FaerCholesky {
 
 impl SpdSolver for FaerCholesky {
     fn analyze(&mut self, pattern: &SparsityPattern) -> Result<(), LinearError> {
-        let sym = SymbolicSparseColMatRef::new_checked(pattern.n, pattern.n, &pattern.col_ptr, None, &pattern.row_idx);
-        let symbolic =
-            factorize_symbolic_cholesky(sym, Side::Upper, SymmetricOrdering::Amd, CholeskySymbolicParams::default())
-                .map_err(|e| LinearError::Backend(format!("{e:?}")))?;
+        let sym = SymbolicSparseColMatRef::new_checked(
+            pattern.n,
+            pattern.n,
+            &pattern.col_ptr,
+            None,
+            &pattern.row_idx,
+        );
+        let symbolic = factorize_symbolic_cholesky(
+            sym,
+            Side::Upper,
+            SymmetricOrdering::Amd,
+            CholeskySymbolicParams::default(),
+        )
+        .map_err(|e| LinearError::Backend(format!("{e:?}")))?;
         self.factor_values = vec![0.0; symbolic.len_val()];
-        let req = symbolic.factorize_numeric_llt_scratch::<f64>(self.par, Spec::<LltParams, f64>::default());
+        let req = symbolic
+            .factorize_numeric_llt_scratch::<f64>(self.par, Spec::<LltParams, f64>::default());
         let req = req.or(symbolic.solve_in_place_scratch::<f64>(1, self.par));
-        self.scratch = Some(MemBuffer::try_new(req).map_err(|e| LinearError::Backend(format!("{e:?}")))?);
+        self.scratch =
+            Some(MemBuffer::try_new(req).map_err(|e| LinearError::Backend(format!("{e:?}")))?);
         self.symbolic = Some(symbolic);
         self.pattern = Some(pattern.clone());
         self.factored = false;
@@ -111,14 +131,25 @@ impl SpdSolver for FaerCholesky {
     }
 
     fn factor(&mut self, values: &[f64]) -> Result<(), LinearError> {
-        let (Some(pattern), Some(symbolic), Some(scratch)) = (&self.pattern, &self.symbolic, &mut self.scratch) else {
+        let (Some(pattern), Some(symbolic), Some(scratch)) =
+            (&self.pattern, &self.symbolic, &mut self.scratch)
+        else {
             return Err(LinearError::NotReady("analyze"));
         };
         if values.len() != pattern.nnz() {
-            return Err(LinearError::Size { expected: pattern.nnz(), got: values.len() });
+            return Err(LinearError::Size {
+                expected: pattern.nnz(),
+                got: values.len(),
+            });
         }
         self.factored = false;
-        let sym = SymbolicSparseColMatRef::new_checked(pattern.n, pattern.n, &pattern.col_ptr, None, &pattern.row_idx);
+        let sym = SymbolicSparseColMatRef::new_checked(
+            pattern.n,
+            pattern.n,
+            &pattern.col_ptr,
+            None,
+            &pattern.row_idx,
+        );
         let mat = SparseColMatRef::new(sym, values);
         symbolic
             .factorize_numeric_llt::<f64>(
@@ -131,18 +162,25 @@ impl SpdSolver for FaerCholesky {
                 Default::default(),
             )
             .map_err(|e| match e {
-                faer::linalg::solvers::LltError::NonPositivePivot { index } => LinearError::NotPositiveDefinite { pivot: index },
+                faer::linalg::solvers::LltError::NonPositivePivot { index } => {
+                    LinearError::NotPositiveDefinite { pivot: index }
+                }
             })?;
         self.factored = true;
         Ok(())
     }
 
     fn solve(&mut self, rhs: &mut [f64]) -> Result<(), LinearError> {
-        let (Some(symbolic), Some(scratch), true) = (&self.symbolic, &mut self.scratch, self.factored) else {
+        let (Some(symbolic), Some(scratch), true) =
+            (&self.symbolic, &mut self.scratch, self.factored)
+        else {
             return Err(LinearError::NotReady("factor"));
         };
         if rhs.len() != symbolic.nrows() {
-            return Err(LinearError::Size { expected: symbolic.nrows(), got: rhs.len() });
+            return Err(LinearError::Size {
+                expected: symbolic.nrows(),
+                got: rhs.len(),
+            });
         }
         let n = rhs.len();
         let llt = LltRef::new(symbolic, &self.factor_values);
@@ -173,9 +211,16 @@ mod tests {
             values.push(2.0);
             col_ptr.push(row_idx.len());
         }
-        let pattern = SparsityPattern { n, col_ptr, row_idx };
+        let pattern = SparsityPattern {
+            n,
+            col_ptr,
+            row_idx,
+        };
         let mut solver = FaerCholesky::default();
-        assert!(matches!(solver.factor(&values), Err(LinearError::NotReady(_))));
+        assert!(matches!(
+            solver.factor(&values),
+            Err(LinearError::NotReady(_))
+        ));
         solver.analyze(&pattern).unwrap();
         solver.factor(&values).unwrap();
         let mut x = vec![1.0; n];
@@ -186,6 +231,9 @@ mod tests {
         }
         // Indefinite values are reported, not panicked on.
         let bad: Vec<f64> = values.iter().map(|v| -v).collect();
-        assert!(matches!(solver.factor(&bad), Err(LinearError::NotPositiveDefinite { .. })));
+        assert!(matches!(
+            solver.factor(&bad),
+            Err(LinearError::NotPositiveDefinite { .. })
+        ));
     }
 }

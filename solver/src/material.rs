@@ -123,13 +123,20 @@ impl BhCurve {
     /// saturation for accurate results there.
     pub fn try_new(h: &[f64], b: &[f64]) -> Result<BhCurve, MaterialError> {
         if h.len() != b.len() {
-            return Err(MaterialError::LengthMismatch { h: h.len(), b: b.len() });
+            return Err(MaterialError::LengthMismatch {
+                h: h.len(),
+                b: b.len(),
+            });
         }
         let mut hs = Vec::with_capacity(h.len() + 2);
         let mut bs = Vec::with_capacity(h.len() + 2);
         for (index, (&hk, &bk)) in h.iter().zip(b).enumerate() {
             if !(hk.is_finite() && bk.is_finite() && hk >= 0.0 && bk >= 0.0) {
-                return Err(MaterialError::BadValue { index, h: hk, b: bk });
+                return Err(MaterialError::BadValue {
+                    index,
+                    h: hk,
+                    b: bk,
+                });
             }
             if index == 0 {
                 if hk == 0.0 && bk == 0.0 {
@@ -145,7 +152,11 @@ impl BhCurve {
             }
             let (hp, bp) = (hs[hs.len() - 1], bs[bs.len() - 1]);
             if !(hk > hp && bk > bp) {
-                return Err(MaterialError::NotIncreasing { index, h: hk, b: bk });
+                return Err(MaterialError::NotIncreasing {
+                    index,
+                    h: hk,
+                    b: bk,
+                });
             }
             hs.push(hk);
             bs.push(bk);
@@ -184,7 +195,13 @@ impl BhCurve {
             secant[0]
         };
         slope[n - 1] = NU0;
-        let mut curve = BhCurve { b, h, slope, energy: vec![0.0; n], data_knots };
+        let mut curve = BhCurve {
+            b,
+            h,
+            slope,
+            energy: vec![0.0; n],
+            data_knots,
+        };
         for k in 1..n {
             curve.energy[k] = curve.energy[k - 1] + curve.segment_integral(k - 1, 1.0);
         }
@@ -193,7 +210,11 @@ impl BhCurve {
 
     /// The data knots `(H, B)` the curve passes through (origin included).
     pub fn points(&self) -> impl Iterator<Item = (f64, f64)> + '_ {
-        self.h.iter().copied().zip(self.b.iter().copied()).take(self.data_knots)
+        self.h
+            .iter()
+            .copied()
+            .zip(self.b.iter().copied())
+            .take(self.data_knots)
     }
 
     /// B of the last data point, T (beyond it the curve is a straight line
@@ -215,8 +236,11 @@ impl BhCurve {
         if f == 1.0 {
             return Ok(self.clone());
         }
-        let (h, b): (Vec<f64>, Vec<f64>) =
-            self.points().skip(1).map(|(h, b)| (h, f * b + (1.0 - f) * MU0 * h)).unzip();
+        let (h, b): (Vec<f64>, Vec<f64>) = self
+            .points()
+            .skip(1)
+            .map(|(h, b)| (h, f * b + (1.0 - f) * MU0 * h))
+            .unzip();
         BhCurve::try_new(&h, &b)
     }
 
@@ -233,7 +257,10 @@ impl BhCurve {
         let i10 = 0.25 * t4 - 2.0 / 3.0 * t3 + 0.5 * t2;
         let i01 = -0.5 * t4 + t3;
         let i11 = 0.25 * t4 - t3 / 3.0;
-        w * (i00 * self.h[k] + i10 * w * self.slope[k] + i01 * self.h[k + 1] + i11 * w * self.slope[k + 1])
+        w * (i00 * self.h[k]
+            + i10 * w * self.slope[k]
+            + i01 * self.h[k + 1]
+            + i11 * w * self.slope[k + 1])
     }
 
     /// H(B) and dH/dB at `b ≥ 0` (negative `b` is treated as |b|).
@@ -251,7 +278,12 @@ impl BhCurve {
         let h10 = t3 - 2.0 * t2 + t;
         let h01 = -2.0 * t3 + 3.0 * t2;
         let h11 = t3 - t2;
-        let (hk, hk1, dk, dk1) = (self.h[k], self.h[k + 1], self.slope[k] * w, self.slope[k + 1] * w);
+        let (hk, hk1, dk, dk1) = (
+            self.h[k],
+            self.h[k + 1],
+            self.slope[k] * w,
+            self.slope[k + 1] * w,
+        );
         let value = h00 * hk + h10 * dk + h01 * hk1 + h11 * dk1;
         let d00 = 6.0 * t2 - 6.0 * t;
         let d10 = 3.0 * t2 - 4.0 * t + 1.0;
@@ -385,12 +417,19 @@ impl Material {
         match *self {
             Material::Linear { mu_r } => positive(mu_r),
             Material::Curve(_) => Ok(()),
-            Material::Magnet { remanence_t, recoil_mu_r, direction_rad } => {
+            Material::Magnet {
+                remanence_t,
+                recoil_mu_r,
+                direction_rad,
+            } => {
                 positive(recoil_mu_r)?;
                 if remanence_t.is_finite() && direction_rad.is_finite() {
                     Ok(())
                 } else {
-                    Err(MaterialError::Magnet { remanence_t, direction_rad })
+                    Err(MaterialError::Magnet {
+                        remanence_t,
+                        direction_rad,
+                    })
                 }
             }
         }
@@ -405,7 +444,9 @@ impl Material {
             return Err(MaterialError::StackingFactor(f));
         }
         Ok(match self {
-            Material::Linear { mu_r } => Material::Linear { mu_r: f * mu_r + (1.0 - f) },
+            Material::Linear { mu_r } => Material::Linear {
+                mu_r: f * mu_r + (1.0 - f),
+            },
             Material::Curve(c) => Material::Curve(c.laminated(f)?),
             m @ Material::Magnet { .. } => m,
         })
@@ -419,9 +460,14 @@ impl Material {
     /// The remanence vector Br·m̂, T (zero except for magnets).
     pub fn remanence(&self) -> [f64; 2] {
         match *self {
-            Material::Magnet { remanence_t, direction_rad, .. } => {
-                [remanence_t * direction_rad.cos(), remanence_t * direction_rad.sin()]
-            }
+            Material::Magnet {
+                remanence_t,
+                direction_rad,
+                ..
+            } => [
+                remanence_t * direction_rad.cos(),
+                remanence_t * direction_rad.sin(),
+            ],
             _ => [0.0, 0.0],
         }
     }
@@ -431,16 +477,28 @@ impl Material {
         match self {
             Material::Linear { mu_r } => {
                 let nu = NU0 / mu_r;
-                MaterialPoint { h: [nu * b[0], nu * b[1]], nu, dnu_db2: 0.0 }
+                MaterialPoint {
+                    h: [nu * b[0], nu * b[1]],
+                    nu,
+                    dnu_db2: 0.0,
+                }
             }
             Material::Curve(c) => {
                 let (nu, dnu_db2) = c.reluctivity(b[0] * b[0] + b[1] * b[1]);
-                MaterialPoint { h: [nu * b[0], nu * b[1]], nu, dnu_db2 }
+                MaterialPoint {
+                    h: [nu * b[0], nu * b[1]],
+                    nu,
+                    dnu_db2,
+                }
             }
             Material::Magnet { recoil_mu_r, .. } => {
                 let nu = NU0 / recoil_mu_r;
                 let br = self.remanence();
-                MaterialPoint { h: [nu * (b[0] - br[0]), nu * (b[1] - br[1])], nu, dnu_db2: 0.0 }
+                MaterialPoint {
+                    h: [nu * (b[0] - br[0]), nu * (b[1] - br[1])],
+                    nu,
+                    dnu_db2: 0.0,
+                }
             }
         }
     }
@@ -480,8 +538,13 @@ mod tests {
     /// A typical non-oriented electrical steel curve (values from memory of
     /// published M-19-like data; only its shape matters here).
     fn steel() -> BhCurve {
-        let h = [0.0, 40.0, 60.0, 80.0, 100.0, 150.0, 200.0, 300.0, 500.0, 1000.0, 2500.0, 5000.0, 10000.0, 30000.0, 100000.0];
-        let b = [0.0, 0.3, 0.55, 0.8, 1.0, 1.2, 1.3, 1.4, 1.5, 1.6, 1.7, 1.8, 1.9, 2.05, 2.2];
+        let h = [
+            0.0, 40.0, 60.0, 80.0, 100.0, 150.0, 200.0, 300.0, 500.0, 1000.0, 2500.0, 5000.0,
+            10000.0, 30000.0, 100000.0,
+        ];
+        let b = [
+            0.0, 0.3, 0.55, 0.8, 1.0, 1.2, 1.3, 1.4, 1.5, 1.6, 1.7, 1.8, 1.9, 2.05, 2.2,
+        ];
         BhCurve::try_new(&h, &b).unwrap()
     }
 
@@ -490,7 +553,11 @@ mod tests {
         let c = steel();
         for (h, b) in c.points() {
             // Interpolation property: exact at the knots (up to rounding).
-            assert!((c.h_of_b(b) - h).abs() <= 1e-9 * (1.0 + h), "H({b}) = {} vs {h}", c.h_of_b(b));
+            assert!(
+                (c.h_of_b(b) - h).abs() <= 1e-9 * (1.0 + h),
+                "H({b}) = {} vs {h}",
+                c.h_of_b(b)
+            );
             assert!((c.b_of_h(h) - b).abs() <= 1e-12 * (1.0 + b));
         }
         let mut last = -1.0;
@@ -530,7 +597,10 @@ mod tests {
             let step = 1e-6 * b2;
             let fd = (c.reluctivity(b2 + step).0 - c.reluctivity(b2 - step).0) / (2.0 * step);
             let scale = d.abs().max(nu / b2 * 1e-6);
-            assert!((fd - d).abs() <= 1e-5 * scale, "B = {b}: dν/dB² {d} vs fd {fd}");
+            assert!(
+                (fd - d).abs() <= 1e-5 * scale,
+                "B = {b}: dν/dB² {d} vs fd {fd}"
+            );
         }
         // ν at B → 0 is finite and equals the initial slope.
         let (nu0, _) = c.reluctivity(0.0);
@@ -546,12 +616,18 @@ mod tests {
         let n = 200_000;
         let mut w = 0.0;
         for i in 0..n {
-            let (b0, b1) = (b_end * i as f64 / n as f64, b_end * (i + 1) as f64 / n as f64);
+            let (b0, b1) = (
+                b_end * i as f64 / n as f64,
+                b_end * (i + 1) as f64 / n as f64,
+            );
             w += 0.5 * (c.h_of_b(b0) + c.h_of_b(b1)) * (b1 - b0);
         }
         assert!((c.energy_density(b_end) - w).abs() < 1e-6 * w);
         let h_end = c.h_of_b(b_end);
-        assert!((c.energy_density(b_end) + c.coenergy_density(b_end) - b_end * h_end).abs() < 1e-9 * b_end * h_end);
+        assert!(
+            (c.energy_density(b_end) + c.coenergy_density(b_end) - b_end * h_end).abs()
+                < 1e-9 * b_end * h_end
+        );
     }
 
     #[test]
@@ -589,16 +665,33 @@ mod tests {
     fn bad_curves_are_rejected_with_the_culprit() {
         assert_eq!(
             BhCurve::try_new(&[0.0, 10.0, 5.0], &[0.0, 1.0, 1.2]),
-            Err(MaterialError::NotIncreasing { index: 2, h: 5.0, b: 1.2 })
+            Err(MaterialError::NotIncreasing {
+                index: 2,
+                h: 5.0,
+                b: 1.2
+            })
         );
-        assert!(matches!(BhCurve::try_new(&[1.0], &[]), Err(MaterialError::LengthMismatch { .. })));
-        assert!(matches!(BhCurve::try_new(&[0.0], &[0.0]), Err(MaterialError::TooFewPoints)));
-        assert!(matches!(BhCurve::try_new(&[f64::NAN], &[1.0]), Err(MaterialError::BadValue { .. })));
+        assert!(matches!(
+            BhCurve::try_new(&[1.0], &[]),
+            Err(MaterialError::LengthMismatch { .. })
+        ));
+        assert!(matches!(
+            BhCurve::try_new(&[0.0], &[0.0]),
+            Err(MaterialError::TooFewPoints)
+        ));
+        assert!(matches!(
+            BhCurve::try_new(&[f64::NAN], &[1.0]),
+            Err(MaterialError::BadValue { .. })
+        ));
     }
 
     #[test]
     fn magnet_law_and_energy() {
-        let m = Material::Magnet { remanence_t: 1.2, recoil_mu_r: 1.05, direction_rad: 0.0 };
+        let m = Material::Magnet {
+            remanence_t: 1.2,
+            recoil_mu_r: 1.05,
+            direction_rad: 0.0,
+        };
         // At B = Br (closed circuit) H = 0 and the stored energy is zero.
         let p = m.at([1.2, 0.0]);
         assert!(p.h[0].abs() < 1e-9 && p.h[1] == 0.0);

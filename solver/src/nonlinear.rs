@@ -105,7 +105,10 @@ pub struct NewtonReport {
 }
 
 /// Solve `problem` with faer's Cholesky factorisation.
-pub fn solve<'p>(problem: &'p Problem<'p>, options: &NewtonOptions) -> Result<Solution<'p>, SolveError> {
+pub fn solve<'p>(
+    problem: &'p Problem<'p>,
+    options: &NewtonOptions,
+) -> Result<Solution<'p>, SolveError> {
     solve_with(problem, options, &mut FaerCholesky::default())
 }
 
@@ -117,10 +120,17 @@ pub fn solve_with<'p>(
 ) -> Result<Solution<'p>, SolveError> {
     let start = Instant::now();
     let assembler = Assembler::new(problem)?;
-    let mut timings = Timings { setup_s: start.elapsed().as_secs_f64(), ..Timings::default() };
+    let mut timings = Timings {
+        setup_s: start.elapsed().as_secs_f64(),
+        ..Timings::default()
+    };
     let n = assembler.constraints.n_free;
     let linear = !problem.is_nonlinear();
-    let mut report = NewtonReport { unknowns: n, linear, ..NewtonReport::default() };
+    let mut report = NewtonReport {
+        unknowns: n,
+        linear,
+        ..NewtonReport::default()
+    };
     let mut u = assembler.initial_potential();
     let mut x = vec![0.0; n];
     let mut values = vec![0.0; assembler.pattern.nnz()];
@@ -171,9 +181,11 @@ pub fn solve_with<'p>(
             (1.0, 0.0)
         } else {
             match options.line_search {
-                LineSearch::ResidualNorm => {
-                    backtrack_residual(&mut |a| trial(a, &mut trial_r), current, options.max_halvings)
-                }
+                LineSearch::ResidualNorm => backtrack_residual(
+                    &mut |a| trial(a, &mut trial_r),
+                    current,
+                    options.max_halvings,
+                ),
                 LineSearch::Energy => {
                     let slope0: f64 = residual.iter().zip(&step).map(|(r, s)| r * s).sum();
                     let mut directional = |a: f64| {
@@ -208,7 +220,9 @@ pub fn solve_with<'p>(
             report.converged = relative <= options.residual_tolerance.max(LINEAR_RESIDUAL_LIMIT);
             break;
         }
-        if relative <= options.residual_tolerance || report.relative_update <= options.update_tolerance {
+        if relative <= options.residual_tolerance
+            || report.relative_update <= options.update_tolerance
+        {
             report.converged = true;
             break;
         }
@@ -218,7 +232,11 @@ pub fn solve_with<'p>(
 }
 
 /// Armijo backtracking on the residual norm: (α, ‖R(α)‖).
-fn backtrack_residual(residual_at: &mut dyn FnMut(f64) -> f64, current: f64, max_evaluations: usize) -> (f64, f64) {
+fn backtrack_residual(
+    residual_at: &mut dyn FnMut(f64) -> f64,
+    current: f64,
+    max_evaluations: usize,
+) -> (f64, f64) {
     let mut alpha = 1.0;
     let mut best = (1.0, f64::INFINITY);
     for _ in 0..max_evaluations.max(1) {
@@ -236,9 +254,13 @@ fn backtrack_residual(residual_at: &mut dyn FnMut(f64) -> f64, current: f64, max
 
 /// Root of the directional derivative d(α) = R(u + αδ)·δ of the convex
 /// energy along δ, given d(0) = `slope0` < 0: (α, ‖R(α)‖).
-fn energy_line_search(directional: &mut dyn FnMut(f64) -> (f64, f64), slope0: f64, max_evaluations: usize) -> (f64, f64) {
+fn energy_line_search(
+    directional: &mut dyn FnMut(f64) -> (f64, f64),
+    slope0: f64,
+    max_evaluations: usize,
+) -> (f64, f64) {
     let (d1, n1) = directional(1.0);
-    if !(slope0 < 0.0) || d1 <= 0.1 * slope0.abs() {
+    if slope0.is_nan() || slope0 >= 0.0 || d1 <= 0.1 * slope0.abs() {
         // Still descending at the full Newton step (or nearly flat): take it.
         return (1.0, n1);
     }

@@ -19,12 +19,18 @@ pub struct RegionProps {
 impl RegionProps {
     /// Air without current.
     pub fn air() -> RegionProps {
-        RegionProps { material: Material::AIR, current_density_a_per_m2: 0.0 }
+        RegionProps {
+            material: Material::AIR,
+            current_density_a_per_m2: 0.0,
+        }
     }
 
     /// A material without current.
     pub fn of(material: Material) -> RegionProps {
-        RegionProps { material, current_density_a_per_m2: 0.0 }
+        RegionProps {
+            material,
+            current_density_a_per_m2: 0.0,
+        }
     }
 }
 
@@ -63,18 +69,28 @@ pub struct BoundarySpec {
     pub default: EdgeCondition,
     /// `(segment index, condition)` overrides; a later entry wins. Where two
     /// fixed-value conditions meet at a corner node, the later one holds.
+    /// The partner of a periodic segment is left to the pair (the default
+    /// does not apply to it) unless it is listed here itself.
     pub segments: Vec<(u32, EdgeCondition)>,
 }
 
 impl BoundarySpec {
     /// The same condition on every segment.
     pub fn uniform(condition: EdgeCondition) -> BoundarySpec {
-        BoundarySpec { default: condition, segments: Vec::new() }
+        BoundarySpec {
+            default: condition,
+            segments: Vec::new(),
+        }
     }
 
     /// The condition of segment `s`.
     pub fn condition(&self, s: u32) -> EdgeCondition {
-        self.segments.iter().rev().find(|(k, _)| *k == s).map(|(_, c)| *c).unwrap_or(self.default)
+        self.segments
+            .iter()
+            .rev()
+            .find(|(k, _)| *k == s)
+            .map(|(_, c)| *c)
+            .unwrap_or(self.default)
     }
 }
 
@@ -133,7 +149,9 @@ pub enum SolveError {
         source: MaterialError,
     },
     /// A triangle's region has no entry in [`Problem::regions`].
-    #[error("triangle {triangle} has region {region} but only {available} region entries are given")]
+    #[error(
+        "triangle {triangle} has region {region} but only {available} region entries are given"
+    )]
     MissingRegion {
         /// The triangle.
         triangle: usize,
@@ -153,7 +171,9 @@ pub enum SolveError {
         reason: &'static str,
     },
     /// An axisymmetric mesh reaches r < 0.
-    #[error("axisymmetric problem: node {node} lies at r = {r} < 0 (x is the radius and must be ≥ 0)")]
+    #[error(
+        "axisymmetric problem: node {node} lies at r = {r} < 0 (x is the radius and must be ≥ 0)"
+    )]
     NegativeRadius {
         /// The node.
         node: usize,
@@ -215,25 +235,46 @@ impl Problem<'_> {
         match self.symmetry {
             Symmetry::Planar { depth_m } => {
                 if !(depth_m.is_finite() && depth_m > 0.0) {
-                    return Err(SolveError::Parameter { name: "depth_m", value: depth_m, reason: "must be finite and > 0" });
+                    return Err(SolveError::Parameter {
+                        name: "depth_m",
+                        value: depth_m,
+                        reason: "must be finite and > 0",
+                    });
                 }
             }
             Symmetry::Axisymmetric => {
                 let tol = 1e-9 * self.extent();
-                if let Some((node, p)) = self.mesh.nodes.iter().enumerate().find(|(_, p)| p[0] < -tol) {
+                if let Some((node, p)) = self
+                    .mesh
+                    .nodes
+                    .iter()
+                    .enumerate()
+                    .find(|(_, p)| p[0] < -tol)
+                {
                     return Err(SolveError::NegativeRadius { node, r: p[0] });
                 }
             }
         }
         for (t, &region) in self.mesh.regions.iter().enumerate() {
             if self.region(region).is_none() {
-                return Err(SolveError::MissingRegion { triangle: t, region, available: self.regions.len() });
+                return Err(SolveError::MissingRegion {
+                    triangle: t,
+                    region,
+                    available: self.regions.len(),
+                });
             }
         }
         let last = self.regions.len().saturating_sub(1);
         for (k, props) in self.regions.iter().enumerate() {
-            let region = if k == last { Mesh::OUTER_REGION } else { k as u32 };
-            props.material.validate().map_err(|source| SolveError::Material { region, source })?;
+            let region = if k == last {
+                Mesh::OUTER_REGION
+            } else {
+                k as u32
+            };
+            props
+                .material
+                .validate()
+                .map_err(|source| SolveError::Material { region, source })?;
             if !props.current_density_a_per_m2.is_finite() {
                 return Err(SolveError::Parameter {
                     name: "current_density_a_per_m2",
@@ -252,6 +293,10 @@ impl Problem<'_> {
 
     /// Largest coordinate magnitude of the mesh, mesh units (for tolerances).
     pub(crate) fn extent(&self) -> f64 {
-        self.mesh.nodes.iter().fold(0.0f64, |m, p| m.max(p[0].abs()).max(p[1].abs())).max(f64::MIN_POSITIVE)
+        self.mesh
+            .nodes
+            .iter()
+            .fold(0.0f64, |m, p| m.max(p[0].abs()).max(p[1].abs()))
+            .max(f64::MIN_POSITIVE)
     }
 }

@@ -32,7 +32,10 @@ fn run(order: ElementOrder, h_mm: f64) -> (f64, f64, f64) {
         symmetry: Symmetry::Planar { depth_m: 1.0 },
         order,
         regions: vec![
-            RegionProps { material: Material::Linear { mu_r: 1.0 }, current_density_a_per_m2: j },
+            RegionProps {
+                material: Material::Linear { mu_r: 1.0 },
+                current_density_a_per_m2: j,
+            },
             RegionProps::air(),
             RegionProps::air(),
         ],
@@ -59,7 +62,10 @@ fn run(order: ElementOrder, h_mm: f64) -> (f64, f64, f64) {
     }
     let energy = solution.energy();
     let exact_energy = MU0 * CURRENT * CURRENT / (4.0 * PI) * (0.25 + (R_MM / A_MM).ln());
-    assert!((solution.coenergy() / energy - 1.0).abs() < 1e-12, "linear: energy = co-energy");
+    assert!(
+        (solution.coenergy() / energy - 1.0).abs() < 1e-12,
+        "linear: energy = co-energy"
+    );
     (worst_in, worst_out, energy / exact_energy - 1.0)
 }
 

@@ -27,7 +27,11 @@ fn inside_field(order: ElementOrder, mu_r: f64) -> ([f64; 2], f64) {
         length_scale_m: 1.0,
         symmetry: Symmetry::Planar { depth_m: 1.0 },
         order,
-        regions: vec![RegionProps::of(Material::Linear { mu_r }), RegionProps::air(), RegionProps::air()],
+        regions: vec![
+            RegionProps::of(Material::Linear { mu_r }),
+            RegionProps::air(),
+            RegionProps::air(),
+        ],
         boundary: BoundarySpec::uniform(EdgeCondition::UniformField { b: [B0, 0.0] }),
         source: None,
     };
@@ -39,7 +43,10 @@ fn inside_field(order: ElementOrder, mu_r: f64) -> ([f64; 2], f64) {
     let mut worst = [0.0f64; 2];
     for (t, f) in solution.element_fields().iter().enumerate() {
         let p = mesh.triangles[t].map(|i| mesh.nodes[i as usize]);
-        let c = [(p[0][0] + p[1][0] + p[2][0]) / 3.0, (p[0][1] + p[1][1] + p[2][1]) / 3.0];
+        let c = [
+            (p[0][0] + p[1][0] + p[2][0]) / 3.0,
+            (p[0][1] + p[1][1] + p[2][1]) / 3.0,
+        ];
         if c[0].hypot(c[1]) < 0.8 * a {
             worst[0] = worst[0].max((f.b[0] / exact - 1.0).abs());
             worst[1] = worst[1].max((f.b[1] / exact).abs());

@@ -91,8 +91,20 @@ fn planar_rates_are_two_and_three() {
 fn axisymmetric_rates_are_two_and_three() {
     let ns = [8, 16, 32];
     let h: Vec<f64> = ns.iter().map(|&n| 1.0 / n as f64).collect();
-    let e1 = errors(ElementOrder::P1, Symmetry::Axisymmetric, &ns, axi_exact, axi_source);
-    let e2 = errors(ElementOrder::P2, Symmetry::Axisymmetric, &ns, axi_exact, axi_source);
+    let e1 = errors(
+        ElementOrder::P1,
+        Symmetry::Axisymmetric,
+        &ns,
+        axi_exact,
+        axi_source,
+    );
+    let e2 = errors(
+        ElementOrder::P2,
+        Symmetry::Axisymmetric,
+        &ns,
+        axi_exact,
+        axi_source,
+    );
     let (r1, r2) = (slope(&h, &e1), slope(&h, &e2));
     eprintln!("axisymmetric P1 {e1:?} rate {r1:.3}; P2 {e2:?} rate {r2:.3}");
     assert!((r1 - 2.0).abs() < 0.1, "P1 rate {r1}");

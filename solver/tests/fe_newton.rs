@@ -14,8 +14,13 @@ use fluxwright_solver::problem::*;
 use std::f64::consts::PI;
 
 fn steel() -> BhCurve {
-    let h = [0.0, 40.0, 60.0, 80.0, 100.0, 150.0, 200.0, 300.0, 500.0, 1000.0, 2500.0, 5000.0, 10000.0, 30000.0, 100000.0];
-    let b = [0.0, 0.3, 0.55, 0.8, 1.0, 1.2, 1.3, 1.4, 1.5, 1.6, 1.7, 1.8, 1.9, 2.05, 2.2];
+    let h = [
+        0.0, 40.0, 60.0, 80.0, 100.0, 150.0, 200.0, 300.0, 500.0, 1000.0, 2500.0, 5000.0, 10000.0,
+        30000.0, 100000.0,
+    ];
+    let b = [
+        0.0, 0.3, 0.55, 0.8, 1.0, 1.2, 1.3, 1.4, 1.5, 1.6, 1.7, 1.8, 1.9, 2.05, 2.2,
+    ];
     BhCurve::try_new(&h, &b).unwrap()
 }
 
@@ -43,7 +48,10 @@ fn run(order: ElementOrder, current: f64, h_mm: f64, line_search: LineSearch) ->
         symmetry: Symmetry::Planar { depth_m: 1.0 },
         order,
         regions: vec![
-            RegionProps { material: Material::AIR, current_density_a_per_m2: current / area },
+            RegionProps {
+                material: Material::AIR,
+                current_density_a_per_m2: current / area,
+            },
             RegionProps::of(Material::Curve(curve.clone())),
             RegionProps::air(),
             RegionProps::air(),
@@ -51,7 +59,14 @@ fn run(order: ElementOrder, current: f64, h_mm: f64, line_search: LineSearch) ->
         boundary: BoundarySpec::uniform(EdgeCondition::ZeroPotential),
         source: None,
     };
-    let s = solve(&problem, &NewtonOptions { line_search, ..NewtonOptions::default() }).unwrap();
+    let s = solve(
+        &problem,
+        &NewtonOptions {
+            line_search,
+            ..NewtonOptions::default()
+        },
+    )
+    .unwrap();
     assert!(s.report.converged, "{:?}", s.report);
     let mut worst: f64 = 0.0;
     for (t, f) in s.element_fields().iter().enumerate() {
@@ -59,7 +74,8 @@ fn run(order: ElementOrder, current: f64, h_mm: f64, line_search: LineSearch) ->
             continue;
         }
         let p = mesh.triangles[t].map(|i| mesh.nodes[i as usize]);
-        let r = ((p[0][0] + p[1][0] + p[2][0]) / 3.0).hypot((p[0][1] + p[1][1] + p[2][1]) / 3.0) * 1e-3;
+        let r =
+            ((p[0][0] + p[1][0] + p[2][0]) / 3.0).hypot((p[0][1] + p[1][1] + p[2][1]) / 3.0) * 1e-3;
         let exact = curve.b_of_h(current / (2.0 * PI * r));
         worst = worst.max((f.b_magnitude / exact - 1.0).abs());
     }
@@ -80,8 +96,15 @@ fn newton_converges_in_few_steps_on_a_saturating_tube() {
             eprintln!("{order:?} {line_search:?} I = {current} A: {iterations} steps, residual {residual:.1e}, B error {worst:.2e}");
             // Requirement of the solver's design (common practice, no
             // source): 1e-8 relative residual within 12 Newton steps.
-            assert!(iterations <= 12 && residual <= 1e-8, "{iterations} {residual}");
-            let tol = if order == ElementOrder::P1 { 0.03 } else { 0.005 };
+            assert!(
+                iterations <= 12 && residual <= 1e-8,
+                "{iterations} {residual}"
+            );
+            let tol = if order == ElementOrder::P1 {
+                0.03
+            } else {
+                0.005
+            };
             assert!(worst < tol, "{order:?} I = {current}: B error {worst}");
         }
     }

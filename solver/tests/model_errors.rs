@@ -664,3 +664,55 @@ fn too_fine_a_mesh_is_refused_before_meshing() {
         &["shape `sq`", "triangles", "larger size"],
     );
 }
+
+#[test]
+fn legal_but_suspicious_models_give_warnings() {
+    let text = r#"
+[materials.unused]
+relative_permeability = 100
+
+[materials.iron]
+relative_permeability = 1000
+
+[windings.idle]
+turns = 5
+current = 1
+
+[windings.main]
+turns = 10
+
+[[shape]]
+name = "pole"
+rectangle = { min = [1, 0], max = [2, 1] }
+material = "iron"
+magnetization_angle = 90
+repeat = { count = 3, alternate = true }
+
+[[shape]]
+name = "go"
+rectangle = { min = [3, 3], max = [4, 4] }
+winding = "main"
+[[shape]]
+name = "back"
+rectangle = { min = [5, 3], max = [6, 4] }
+winding = "main"
+direction = -1
+"#;
+    let m = Model::from_toml_str(text, &ModelSource::new(FILE)).expect("warnings only");
+    let expect = [
+        (Some(2), "material `unused` is not used by any shape"),
+        (Some(8), "winding `idle` is in no shape"),
+        (Some(12), "winding `main` has no `current`; it carries 0 A"),
+        (
+            Some(19),
+            "`magnetization_angle` has no effect: material `iron` has no `remanence`",
+        ),
+        (Some(20), "`alternate` with an odd count (3)"),
+    ];
+    for (line, text) in expect {
+        let w = m.warnings.iter().find(|w| w.what.contains(text));
+        let w = w.unwrap_or_else(|| panic!("no warning {text:?} in {:#?}", m.warnings));
+        assert_eq!(w.line, line, "{w}");
+    }
+    assert_eq!(m.warnings.len(), expect.len(), "{:#?}", m.warnings);
+}

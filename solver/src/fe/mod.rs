@@ -106,14 +106,19 @@ pub struct Triangle {
 impl Triangle {
     /// The triangle with these vertices.
     pub fn new(v: [[f64; 2]; 3]) -> Triangle {
-        let twice = (v[1][0] - v[0][0]) * (v[2][1] - v[0][1]) - (v[1][1] - v[0][1]) * (v[2][0] - v[0][0]);
+        let twice =
+            (v[1][0] - v[0][0]) * (v[2][1] - v[0][1]) - (v[1][1] - v[0][1]) * (v[2][0] - v[0][0]);
         let inv = 1.0 / twice;
         let mut grad_bary = [[0.0; 2]; 3];
         for (k, g) in grad_bary.iter_mut().enumerate() {
             let (p, q) = (v[(k + 1) % 3], v[(k + 2) % 3]);
             *g = [(p[1] - q[1]) * inv, (q[0] - p[0]) * inv];
         }
-        Triangle { vertices: v, area: 0.5 * twice, grad_bary }
+        Triangle {
+            vertices: v,
+            area: 0.5 * twice,
+            grad_bary,
+        }
     }
 
     /// The point with barycentric coordinates `l`.
@@ -187,20 +192,30 @@ impl CurlBasis {
                     let gz = dl[a][0] * g[0][1] + dl[a][1] * g[1][1] + dl[a][2] * g[2][1];
                     // On the axis A_φ = 0, so A_φ/r → ∂A_φ/∂r and B_z = 2∂A_φ/∂r
                     // (only probes land there: quadrature points are interior).
-                    curl[a] = if r > 0.0 { [-gz, value[a] / r + gr] } else { [-gz, 2.0 * gr] };
+                    curl[a] = if r > 0.0 {
+                        [-gz, value[a] / r + gr]
+                    } else {
+                        [-gz, 2.0 * gr]
+                    };
                 }
                 2.0 * PI * r
             }
         };
-        CurlBasis { n, x, value, curl, volume_factor }
+        CurlBasis {
+            n,
+            x,
+            value,
+            curl,
+            volume_factor,
+        }
     }
 
     /// B = Σ u_a c_a.
     pub fn flux_density(&self, u: &[f64]) -> [f64; 2] {
         let mut b = [0.0; 2];
-        for a in 0..self.n {
-            b[0] += u[a] * self.curl[a][0];
-            b[1] += u[a] * self.curl[a][1];
+        for (ua, c) in u.iter().zip(&self.curl[..self.n]) {
+            b[0] += ua * c[0];
+            b[1] += ua * c[1];
         }
         b
     }
@@ -240,18 +255,24 @@ pub(crate) struct ElementLoad<'a> {
     pub length_scale_m: f64,
 }
 
+/// Element type and integration rule.
+pub(crate) struct ElementKind<'a> {
+    pub order: ElementOrder,
+    pub symmetry: Symmetry,
+    pub rule: &'a TriangleRule,
+}
+
 /// Residual R_a and (optionally) the packed upper tangent K_ab of one
 /// element at local values `u`.
 pub(crate) fn element_system(
     tri: &Triangle,
-    order: ElementOrder,
-    symmetry: Symmetry,
-    rule: &TriangleRule,
+    kind: &ElementKind<'_>,
     load: &ElementLoad<'_>,
     u: &[f64],
     residual: &mut [f64],
     mut tangent: Option<&mut [f64]>,
 ) {
+    let (order, symmetry, rule) = (kind.order, kind.symmetry, kind.rule);
     let n = order.local_dofs();
     residual[..n].fill(0.0);
     if let Some(t) = tangent.as_deref_mut() {
@@ -265,7 +286,8 @@ pub(crate) fn element_system(
         let mut b_dot_c = [0.0; MAX_LOCAL];
         for a in 0..n {
             let c = basis.curl[a];
-            residual[a] += weight * (mp.h[0] * c[0] + mp.h[1] * c[1] - load.current_density * basis.value[a]);
+            residual[a] +=
+                weight * (mp.h[0] * c[0] + mp.h[1] * c[1] - load.current_density * basis.value[a]);
             b_dot_c[a] = b[0] * c[0] + b[1] * c[1];
         }
         if let Some(t) = tangent.as_deref_mut() {
@@ -275,7 +297,9 @@ pub(crate) fn element_system(
                 let ca = basis.curl[a];
                 for bb in a..n {
                     let cb = basis.curl[bb];
-                    t[idx] += weight * (mp.nu * (ca[0] * cb[0] + ca[1] * cb[1]) + two_dnu * b_dot_c[a] * b_dot_c[bb]);
+                    t[idx] += weight
+                        * (mp.nu * (ca[0] * cb[0] + ca[1] * cb[1])
+                            + two_dnu * b_dot_c[a] * b_dot_c[bb]);
                     idx += 1;
                 }
             }
@@ -287,8 +311,8 @@ pub(crate) fn element_system(
             let x = basis.x;
             let j = source([x[0] / load.length_scale_m, x[1] / load.length_scale_m]);
             let weight = w * tri.area * basis.volume_factor * j;
-            for a in 0..n {
-                residual[a] -= weight * basis.value[a];
+            for (r, v) in residual[..n].iter_mut().zip(&basis.value) {
+                *r -= weight * v;
             }
         }
     }
@@ -304,10 +328,17 @@ mod tests {
     fn shape_functions_partition_unity_and_interpolate() {
         let tri = Triangle::new(TRI);
         for order in [ElementOrder::P1, ElementOrder::P2] {
-            let b = CurlBasis::at(&tri, order, Symmetry::Planar { depth_m: 1.0 }, [0.2, 0.5, 0.3]);
+            let b = CurlBasis::at(
+                &tri,
+                order,
+                Symmetry::Planar { depth_m: 1.0 },
+                [0.2, 0.5, 0.3],
+            );
             let sum: f64 = b.value[..b.n].iter().sum();
             assert!((sum - 1.0).abs() < 1e-14);
-            let cs: [f64; 2] = (0..b.n).fold([0.0, 0.0], |s, a| [s[0] + b.curl[a][0], s[1] + b.curl[a][1]]);
+            let cs: [f64; 2] = (0..b.n).fold([0.0, 0.0], |s, a| {
+                [s[0] + b.curl[a][0], s[1] + b.curl[a][1]]
+            });
             assert!(cs[0].abs() < 1e-12 && cs[1].abs() < 1e-12);
             // Nodal values of A = 2x − 3y reproduce B = (∂A/∂y, −∂A/∂x) = (−3, −2).
             let nodes: Vec<[f64; 2]> = match order {
@@ -336,7 +367,12 @@ mod tests {
             v.push([0.5 * (v[i][0] + v[j][0]), 0.5 * (v[i][1] + v[j][1])]);
         }
         let u: Vec<f64> = v.iter().map(|p| 0.5 * b0 * p[0]).collect();
-        let b = CurlBasis::at(&tri, ElementOrder::P2, Symmetry::Axisymmetric, [0.1, 0.6, 0.3]);
+        let b = CurlBasis::at(
+            &tri,
+            ElementOrder::P2,
+            Symmetry::Axisymmetric,
+            [0.1, 0.6, 0.3],
+        );
         let bf = b.flux_density(&u);
         assert!(bf[0].abs() < 1e-12 && (bf[1] - b0).abs() < 1e-12);
     }
@@ -349,17 +385,30 @@ mod tests {
         let tri = Triangle::new(TRI);
         let rule = quadrature::dunavant(1);
         let mat = Material::Linear { mu_r: 1.0 };
-        let load = ElementLoad { material: &mat, current_density: 0.0, source: None, length_scale_m: 1.0 };
+        let load = ElementLoad {
+            material: &mat,
+            current_density: 0.0,
+            source: None,
+            length_scale_m: 1.0,
+        };
         let mut r = [0.0; 6];
         let mut k = [0.0; 21];
-        element_system(&tri, ElementOrder::P1, Symmetry::Planar { depth_m: 1.0 }, &rule, &load, &[0.0; 3], &mut r, Some(&mut k));
+        let kind = ElementKind {
+            order: ElementOrder::P1,
+            symmetry: Symmetry::Planar { depth_m: 1.0 },
+            rule: &rule,
+        };
+        element_system(&tri, &kind, &load, &[0.0; 3], &mut r, Some(&mut k));
         let full = |a: usize, b: usize| k[packed_index(3, a.min(b), a.max(b))];
         for a in 0..3 {
             let row: f64 = (0..3).map(|b| full(a, b)).sum();
             assert!(row.abs() < 1e-6 * full(a, a));
             let (p, q) = (TRI[(a + 1) % 3], TRI[(a + 2) % 3]);
             let e2 = (p[0] - q[0]).powi(2) + (p[1] - q[1]).powi(2);
-            assert!((full(a, a) - crate::material::NU0 * e2 / (4.0 * tri.area)).abs() < 1e-9 * full(a, a));
+            assert!(
+                (full(a, a) - crate::material::NU0 * e2 / (4.0 * tri.area)).abs()
+                    < 1e-9 * full(a, a)
+            );
         }
     }
 }

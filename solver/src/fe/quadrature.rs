@@ -51,14 +51,25 @@ fn build(degree: u32, orbits: &[Orbit]) -> TriangleRule {
             }
             Orbit::Six(a, b, w) => {
                 let c = 1.0 - a - b;
-                for p in [[a, b, c], [a, c, b], [b, a, c], [b, c, a], [c, a, b], [c, b, a]] {
+                for p in [
+                    [a, b, c],
+                    [a, c, b],
+                    [b, a, c],
+                    [b, c, a],
+                    [c, a, b],
+                    [c, b, a],
+                ] {
                     points.push(p);
                     weights.push(w);
                 }
             }
         }
     }
-    TriangleRule { degree, points, weights }
+    TriangleRule {
+        degree,
+        points,
+        weights,
+    }
 }
 
 /// The Dunavant rule exact to at least `degree` (capped at 8).
@@ -69,7 +80,10 @@ pub fn dunavant(degree: u32) -> TriangleRule {
         2 => build(2, &[Three(2.0 / 3.0, 1.0 / 3.0)]),
         3 | 4 => build(
             4,
-            &[Three(0.108_103_018_168_070, 0.223_381_589_678_011), Three(0.816_847_572_980_459, 0.109_951_743_655_322)],
+            &[
+                Three(0.108_103_018_168_070, 0.223_381_589_678_011),
+                Three(0.816_847_572_980_459, 0.109_951_743_655_322),
+            ],
         ),
         5 => build(
             5,
@@ -84,7 +98,11 @@ pub fn dunavant(degree: u32) -> TriangleRule {
             &[
                 Three(0.501_426_509_658_179, 0.116_786_275_726_379),
                 Three(0.873_821_971_016_996, 0.050_844_906_370_207),
-                Six(0.053_145_049_844_817, 0.310_352_451_033_784, 0.082_851_075_618_374),
+                Six(
+                    0.053_145_049_844_817,
+                    0.310_352_451_033_784,
+                    0.082_851_075_618_374,
+                ),
             ],
         ),
         _ => build(
@@ -94,7 +112,11 @@ pub fn dunavant(degree: u32) -> TriangleRule {
                 Three(0.081_414_823_414_554, 0.095_091_634_267_285),
                 Three(0.658_861_384_496_480, 0.103_217_370_534_718),
                 Three(0.898_905_543_365_938, 0.032_458_497_623_198),
-                Six(0.008_394_777_409_958, 0.263_112_829_634_638, 0.027_230_314_174_435),
+                Six(
+                    0.008_394_777_409_958,
+                    0.263_112_829_634_638,
+                    0.027_230_314_174_435,
+                ),
             ],
         ),
     }
@@ -127,7 +149,10 @@ mod tests {
                         .map(|(p, w)| w * 0.5 * p[1].powi(i as i32) * p[2].powi(j as i32))
                         .sum();
                     let exact = factorial(i) * factorial(j) / factorial(i + j + 2);
-                    assert!((q - exact).abs() < 2e-14, "degree {degree}, x^{i} y^{j}: {q} vs {exact}");
+                    assert!(
+                        (q - exact).abs() < 2e-14,
+                        "degree {degree}, x^{i} y^{j}: {q} vs {exact}"
+                    );
                 }
             }
         }

@@ -34,16 +34,28 @@ pub fn rectangle(xs: &[f64], ys: &[f64], region_of: impl Fn(Point) -> u32) -> Me
     }
     let mut boundary = Vec::new();
     for i in 0..nx - 1 {
-        boundary.push(BoundaryEdge { nodes: [id(i, 0), id(i + 1, 0)], segment: 0 });
+        boundary.push(BoundaryEdge {
+            nodes: [id(i, 0), id(i + 1, 0)],
+            segment: 0,
+        });
     }
     for j in 0..ny - 1 {
-        boundary.push(BoundaryEdge { nodes: [id(nx - 1, j), id(nx - 1, j + 1)], segment: 1 });
+        boundary.push(BoundaryEdge {
+            nodes: [id(nx - 1, j), id(nx - 1, j + 1)],
+            segment: 1,
+        });
     }
     for i in (0..nx - 1).rev() {
-        boundary.push(BoundaryEdge { nodes: [id(i + 1, ny - 1), id(i, ny - 1)], segment: 2 });
+        boundary.push(BoundaryEdge {
+            nodes: [id(i + 1, ny - 1), id(i, ny - 1)],
+            segment: 2,
+        });
     }
     for j in (0..ny - 1).rev() {
-        boundary.push(BoundaryEdge { nodes: [id(0, j + 1), id(0, j)], segment: 3 });
+        boundary.push(BoundaryEdge {
+            nodes: [id(0, j + 1), id(0, j)],
+            segment: 3,
+        });
     }
     finish(nodes, triangles, boundary, region_of)
 }
@@ -73,7 +85,12 @@ pub fn disc(ring_radii: &[f64], region_of: impl Fn(Point) -> u32) -> Mesh {
         previous_radius = r;
     }
     let m = inner.len();
-    let boundary = (0..m).map(|j| BoundaryEdge { nodes: [inner[j], inner[(j + 1) % m]], segment: 0 }).collect();
+    let boundary = (0..m)
+        .map(|j| BoundaryEdge {
+            nodes: [inner[j], inner[(j + 1) % m]],
+            segment: 0,
+        })
+        .collect();
     finish(nodes, triangles, boundary, region_of)
 }
 
@@ -127,19 +144,35 @@ pub fn graded_lines(from: f64, to: f64, h0: f64, growth: f64) -> Vec<f64> {
         v.push(x);
         h *= growth;
     }
-    v.push(to);
+    if to != from {
+        v.push(to);
+    }
     v
 }
 
-fn finish(nodes: Vec<Point>, triangles: Vec<[u32; 3]>, boundary: Vec<BoundaryEdge>, region_of: impl Fn(Point) -> u32) -> Mesh {
+fn finish(
+    nodes: Vec<Point>,
+    triangles: Vec<[u32; 3]>,
+    boundary: Vec<BoundaryEdge>,
+    region_of: impl Fn(Point) -> u32,
+) -> Mesh {
     let regions = triangles
         .iter()
         .map(|t| {
             let p = t.map(|i| nodes[i as usize]);
-            region_of([(p[0][0] + p[1][0] + p[2][0]) / 3.0, (p[0][1] + p[1][1] + p[2][1]) / 3.0])
+            region_of([
+                (p[0][0] + p[1][0] + p[2][0]) / 3.0,
+                (p[0][1] + p[1][1] + p[2][1]) / 3.0,
+            ])
         })
         .collect();
-    Mesh { nodes, triangles, regions, boundary, report: Default::default() }
+    Mesh {
+        nodes,
+        triangles,
+        regions,
+        boundary,
+        report: Default::default(),
+    }
 }
 
 #[cfg(test)]
@@ -155,7 +188,10 @@ mod tests {
         let area: f64 = (0..m.triangles.len()).map(|t| m.triangle_area(t)).sum();
         assert!((area - 3.0).abs() < 1e-12);
         let radii = ring_radii(0.1, 0.8, 1.25, 3.5);
-        assert!(radii[..8].iter().enumerate().all(|(k, r)| (r - 0.1 * (k + 1) as f64).abs() < 1e-12));
+        assert!(radii[..8]
+            .iter()
+            .enumerate()
+            .all(|(k, r)| (r - 0.1 * (k + 1) as f64).abs() < 1e-12));
         let d = disc(&radii, |p| u32::from(p[0].hypot(p[1]) > 0.8));
         d.check().unwrap();
         // The area is that of the regular n-gon inscribed in the outer

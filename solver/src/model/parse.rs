@@ -792,7 +792,7 @@ pub(crate) fn check_bh(h: &[f64], b: &[f64]) -> Result<(), String> {
         ));
     }
     for k in 1..h.len() {
-        if !(h[k] > h[k - 1]) {
+        if h[k] <= h[k - 1] {
             return Err(format!(
                 "must be strictly increasing in H, but point {} has H = {} after H = {}",
                 k + 1,
@@ -800,7 +800,7 @@ pub(crate) fn check_bh(h: &[f64], b: &[f64]) -> Result<(), String> {
                 h[k - 1]
             ));
         }
-        if !(b[k] > b[k - 1]) {
+        if b[k] <= b[k - 1] {
             return Err(format!(
                 "must be strictly increasing in B, but point {} has B = {} after B = {}",
                 k + 1,

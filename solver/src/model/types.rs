@@ -289,6 +289,10 @@ pub enum OuterCondition {
 }
 
 /// The edge of the modelled region.
+///
+/// Axisymmetric models lie in x = r ≥ 0; where the region touches the axis
+/// (the straight edge of the default half-disc), A = 0 holds there by
+/// symmetry whatever `condition` says, and the solver must impose it.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Outer {
     /// The outline as written, or the default one.

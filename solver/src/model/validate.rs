@@ -221,10 +221,7 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
     } else {
         "[outer] shape"
     };
-    let outer_outline = match outline_of(ctx, &outer_spec, &raw.outer.span, outer_label) {
-        Some(o) => o,
-        None => return None,
-    };
+    let outer_outline = outline_of(ctx, &outer_spec, &raw.outer.span, outer_label)?;
     let outer_bb = outer_outline.bounding_box();
     let outer_extent = (outer_bb.1[0] - outer_bb.0[0]).max(outer_bb.1[1] - outer_bb.0[1]);
     let tol = EDGE_TOLERANCE * outer_extent.max(shape_extent);
