@@ -4,7 +4,7 @@
 
 use crate::geometry::{arc_pieces, polar, Outline, Point, Segment};
 use crate::mesh::Mesh;
-use crate::spatial::{point_segment_distance, SegmentGrid};
+use crate::spatial::{point_segment_distance, segments_touch, SegmentGrid};
 
 /// Label of a point outside the outer outline.
 pub(crate) const OUTSIDE: u32 = u32::MAX - 1;
@@ -195,19 +195,22 @@ impl Domain {
     /// be seen (two long parallel edges sampled only at their ends), and
     /// return the final feature caps of [`Domain::feature_caps`].
     pub(crate) fn refine_for_features(&mut self) -> Vec<Vec<f64>> {
+        let mut caps = self.feature_caps(None);
         for _round in 0..4 {
-            let caps = self.feature_caps();
             if self.fixed_boundary {
                 return caps;
             }
             let mut changed = false;
+            let mut known = Vec::with_capacity(caps.len());
             for (l, cap) in self.loops.iter_mut().zip(&caps) {
                 let n = l.points.len();
                 let (mut points, mut seg, mut param) = (Vec::new(), Vec::new(), Vec::new());
+                let mut old = Vec::new();
                 for i in 0..n {
                     points.push(l.points[i]);
                     seg.push(l.seg[i]);
                     param.push(l.param[i]);
+                    old.push(cap[i]);
                     let j = (i + 1) % n;
                     let feature = ELEMENTS_ACROSS_FEATURE * cap[i].min(cap[j]);
                     let a = l.points[i];
@@ -227,25 +230,29 @@ impl Domain {
                         points.push(point_at(&curve, t));
                         seg.push(l.seg[i]);
                         param.push(t);
+                        old.push(f64::NAN);
                     }
                     changed |= pieces > 1;
                 }
                 if points.len() != n {
                     *l = PolyLoop::new(points, seg, param, l.owner, l.own_size);
                 }
+                known.push(old);
             }
             if !changed {
                 return caps;
             }
+            // Only the new points need their caps (NaN marks them).
+            caps = self.feature_caps(Some(known));
         }
-        self.feature_caps()
+        caps
     }
 
     /// Size cap from the local feature size at every vertex of every loop:
     /// the distance to the nearest input segment that is neither the
     /// vertex's own segment nor joined to it, over
     /// [`ELEMENTS_ACROSS_FEATURE`].
-    pub(crate) fn feature_caps(&self) -> Vec<Vec<f64>> {
+    pub(crate) fn feature_caps(&self, known: Option<Vec<Vec<f64>>>) -> Vec<Vec<f64>> {
         let mut edges = Vec::new();
         let mut edge_seg = Vec::new();
         for l in &self.loops {
@@ -267,10 +274,16 @@ impl Domain {
         let touch = 1e-9 * (hi[0] - lo[0]).max(hi[1] - lo[1]).max(1e-300);
         let grid = SegmentGrid::new(&edges);
         let mut caps = Vec::with_capacity(self.loops.len());
-        for l in &self.loops {
+        for (li, l) in self.loops.iter().enumerate() {
             let n = l.points.len();
             let mut cap = vec![f64::INFINITY; n];
             for i in 0..n {
+                if let Some(k) = &known {
+                    if !k[li][i].is_nan() {
+                        cap[i] = k[li][i];
+                        continue;
+                    }
+                }
                 let p = l.points[i];
                 let own = [l.seg[(i + n - 1) % n], l.seg[i]];
                 let corner = own[0] != own[1];
@@ -280,34 +293,61 @@ impl Domain {
                 // Only features closer than this can lower the size.
                 let radius = ELEMENTS_ACROSS_FEATURE * l.own_size.min(self.max_size);
                 let mut best = f64::INFINITY;
-                grid.query([p[0] - radius, p[1] - radius], [p[0] + radius, p[1] + radius], |j| {
-                    if excluded(edge_seg[j]) {
-                        return;
-                    }
-                    let [a, b] = edges[j];
-                    let (d, t) = point_segment_distance(p, a, b);
-                    if d <= touch || d >= best {
-                        return;
-                    }
-                    // A nearest point on this edge that also lies on the
-                    // vertex's own segments is a shared corner, not a gap.
-                    let q = [a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1])];
-                    let mut on_own = false;
-                    grid.query([q[0] - touch, q[1] - touch], [q[0] + touch, q[1] + touch], |k| {
-                        if !on_own && own.contains(&edge_seg[k]) {
-                            let [c, e] = edges[k];
-                            on_own = point_segment_distance(q, c, e).0 <= touch;
+                let mut candidates: Vec<(f64, usize, f64)> = Vec::new();
+                // Search outwards in growing boxes; stop once the nearest
+                // accepted feature is inside the box searched.
+                let mut r = grid.cell_size().min(radius);
+                loop {
+                    candidates.clear();
+                    grid.query([p[0] - r, p[1] - r], [p[0] + r, p[1] + r], |j| {
+                        if !excluded(edge_seg[j]) {
+                            let (d, t) = point_segment_distance(p, edges[j][0], edges[j][1]);
+                            if d > touch && d <= r {
+                                candidates.push((d, j, t));
+                            }
                         }
                     });
-                    if !on_own {
-                        best = d;
+                    candidates.sort_by(|x, y| x.0.total_cmp(&y.0));
+                    candidates.dedup_by_key(|c| c.1);
+                    for &(d, j, t) in &candidates {
+                        let [a, b] = edges[j];
+                        // A nearest point on this edge that also lies on the
+                        // vertex's own segments is a shared corner, not a gap.
+                        let q = [a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1])];
+                        let mut on_own = false;
+                        grid.query([q[0] - touch, q[1] - touch], [q[0] + touch, q[1] + touch], |k| {
+                            if !on_own && own.contains(&edge_seg[k]) {
+                                let [c, e] = edges[k];
+                                on_own = point_segment_distance(q, c, e).0 <= touch;
+                            }
+                        });
+                        // Near a crossing of the two segments the gap is a
+                        // corner that closes at the crossing point (handled
+                        // by the angle rules), not a thin feature.
+                        let reach = 2.0 * d;
+                        grid.query([p[0] - reach, p[1] - reach], [p[0] + reach, p[1] + reach], |k| {
+                            if !on_own && own.contains(&edge_seg[k]) {
+                                let [c, e] = edges[k];
+                                if let Some(x) = segments_touch(c, e, a, b) {
+                                    on_own = (x[0] - p[0]).hypot(x[1] - p[1]) <= reach;
+                                }
+                            }
+                        });
+                        if !on_own {
+                            best = d;
+                            break;
+                        }
                     }
-                });
+                    if best <= r || r >= radius {
+                        break;
+                    }
+                    r = (2.0 * r).min(radius);
+                }
                 cap[i] = best / ELEMENTS_ACROSS_FEATURE;
             }
             caps.push(cap);
         }
-        if let Some(vc) = &self.vertex_caps {
+        if let (None, Some(vc)) = (&known, &self.vertex_caps) {
             for (cap, extra) in caps.iter_mut().zip(vc) {
                 for (c, e) in cap.iter_mut().zip(extra) {
                     *c = c.min(*e);

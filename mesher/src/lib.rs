@@ -17,6 +17,7 @@
 #![deny(missing_docs)]
 #![forbid(unsafe_code)]
 
+mod arrangement;
 mod domain;
 mod geometry;
 mod mesh;

@@ -344,6 +344,7 @@ impl<'a> Refiner<'a> {
             return;
         }
         match self.walk(f, c) {
+            // Only faces outside the domain see past the hull.
             Walk::Outside => {}
             Walk::Blocked(e) => {
                 if self.split_segment(e) {
@@ -532,17 +533,8 @@ impl<'a> Refiner<'a> {
             };
             for (from, to) in [(a, v), (v, b)] {
                 if self.cdt.try_add_constraint(from, to).is_empty() {
-                    // A nearly collinear constraint is in the way: split
-                    // both where they cross rather than lose either.
-                    let field = self.field;
-                    let made = self.cdt.add_constraint_and_split(from, to, |p| {
-                        let (h, bg) = field.size_at(pt(p), 0);
-                        MeshVertex { pos: p, h, bg, pv: NONE, ends: [NONE; 2] }
-                    });
-                    if made.is_empty() {
-                        self.broken = true;
-                        return false;
-                    }
+                    self.broken = true;
+                    return false;
                 }
             }
             v

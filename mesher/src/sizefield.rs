@@ -25,6 +25,8 @@ const GRID_POINTS_PER_SIDE: usize = 40;
 pub(crate) struct BgVertex {
     pos: Point2<f64>,
     h: f64,
+    /// The start vertex whose cone gives `h`: its position and size.
+    src: [f64; 3],
 }
 
 impl HasPosition for BgVertex {
@@ -91,63 +93,64 @@ fn tri_err(e: spade::InsertionError) -> MeshError {
 impl SizeField {
     /// Build the background and the PSLG from the domain.
     pub(crate) fn build(domain: &Domain, caps: &[Vec<f64>], min_angle_deg: f64) -> Result<(SizeField, Pslg), MeshError> {
-        let mut bg = Bg::new();
-        let mut cap_of: Vec<f64> = Vec::new();
-        let mut handles: Vec<Vec<FixedVertexHandle>> = Vec::with_capacity(domain.loops.len());
-        let mut last: Option<FixedVertexHandle> = None;
-        for (l, cap) in domain.loops.iter().zip(caps) {
-            let mut hs = Vec::with_capacity(l.points.len());
-            for (p, &c) in l.points.iter().zip(cap) {
-                let v = BgVertex { pos: p2(*p), h: f64::INFINITY };
-                let h = match last {
-                    Some(hint) => bg.insert_with_hint(v, hint),
-                    None => bg.insert(v),
-                }
-                .map_err(tri_err)?;
-                if cap_of.len() <= h.index() {
-                    cap_of.resize(h.index() + 1, f64::INFINITY);
-                }
-                cap_of[h.index()] = cap_of[h.index()].min(c.min(l.own_size));
-                hs.push(h);
-                last = Some(h);
-            }
-            handles.push(hs);
-        }
-        for hs in &handles {
-            let n = hs.len();
-            for i in 0..n {
-                let (a, b) = (hs[i], hs[(i + 1) % n]);
-                if a != b {
-                    bg.add_constraint_and_split(a, b, |p| BgVertex { pos: p, h: f64::INFINITY });
-                }
-            }
-        }
-        // The PSLG: every background vertex so far, and every constraint.
-        let points: Vec<Point> = bg.vertices().map(|v| [v.position().x, v.position().y]).collect();
-        let edges: Vec<[u32; 2]> = bg
-            .undirected_edges()
-            .filter(|e| e.is_constraint_edge())
-            .map(|e| {
-                let [a, b] = e.vertices();
-                [a.fix().index() as u32, b.fix().index() as u32]
-            })
-            .collect();
-        let mut neighbors = vec![Vec::new(); points.len()];
-        for &[a, b] in &edges {
-            neighbors[a as usize].push(b);
-            neighbors[b as usize].push(a);
-        }
-        cap_of.resize(points.len(), f64::INFINITY);
-
-        // Coarse grid points carry region sizes and the grading ramp into
-        // the interior.
+        // Snap the polylines into a planar graph first: spade needs
+        // constraints that neither cross nor nearly overlap.
         let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
-        for p in &points {
+        for p in domain.loops.iter().flat_map(|l| &l.points) {
             for k in 0..2 {
                 lo[k] = lo[k].min(p[k]);
                 hi[k] = hi[k].max(p[k]);
             }
         }
+        let tol = 1e-9 * (hi[0] - lo[0]).max(hi[1] - lo[1]).max(lo[0].abs()).max(lo[1].abs()).max(hi[0].abs()).max(hi[1].abs());
+        let t0 = std::time::Instant::now();
+        let arr = crate::arrangement::build(&domain.loops, tol);
+        if std::env::var_os("FLUXWRIGHT_MESH_TIMING").is_some() {
+            eprintln!("arrangement {:.3}s", t0.elapsed().as_secs_f64());
+        }
+        let mut cap_of = vec![f64::INFINITY; arr.points.len()];
+        for ((l, cap), ids) in domain.loops.iter().zip(caps).zip(&arr.loop_ids) {
+            for (&c, &id) in cap.iter().zip(ids) {
+                cap_of[id as usize] = cap_of[id as usize].min(c.min(l.own_size));
+            }
+        }
+        let mut bg = Bg::new();
+        let mut last: Option<FixedVertexHandle> = None;
+        let mut handles = Vec::with_capacity(arr.points.len());
+        for p in &arr.points {
+            let v = BgVertex { pos: p2(*p), h: f64::INFINITY, src: [0.0; 3] };
+            let h = match last {
+                Some(hint) => bg.insert_with_hint(v, hint),
+                None => bg.insert(v),
+            }
+            .map_err(tri_err)?;
+            if h.index() != handles.len() {
+                return Err(MeshError::Triangulation(format!(
+                    "input points ({}, {}) coincide after rounding",
+                    p[0], p[1]
+                )));
+            }
+            handles.push(h);
+            last = Some(h);
+        }
+        for &[a, b] in &arr.edges {
+            if bg.try_add_constraint(handles[a as usize], handles[b as usize]).is_empty() {
+                let p = arr.points[a as usize];
+                return Err(MeshError::Triangulation(format!(
+                    "input edges near ({:.6}, {:.6}) cross or overlap too closely to be separated",
+                    p[0], p[1]
+                )));
+            }
+        }
+        let points = arr.points;
+        let edges = arr.edges;
+        let mut neighbors = vec![Vec::new(); points.len()];
+        for &[a, b] in &edges {
+            neighbors[a as usize].push(b);
+            neighbors[b as usize].push(a);
+        }
+        // Coarse grid points carry region sizes and the grading ramp into
+        // the interior.
         let spacing = (hi[0] - lo[0]).max(hi[1] - lo[1]) / GRID_POINTS_PER_SIDE as f64;
         if spacing > 0.0 {
             let nx = ((hi[0] - lo[0]) / spacing).floor() as usize;
@@ -157,7 +160,7 @@ impl SizeField {
                     let ii = if j % 2 == 0 { i } else { nx - 1 - i };
                     // Offset from the box so grid points avoid axis-aligned input.
                     let p = [lo[0] + (ii as f64 + 0.5 + 0.0137) * spacing, lo[1] + (j as f64 + 0.5 + 0.0291) * spacing];
-                    let v = BgVertex { pos: p2(p), h: f64::INFINITY };
+                    let v = BgVertex { pos: p2(p), h: f64::INFINITY, src: [0.0; 3] };
                     let h = match last {
                         Some(hint) => bg.insert_with_hint(v, hint),
                         None => bg.insert(v),
@@ -218,7 +221,10 @@ impl SizeField {
             }
         }
         for (i, &hv) in h.iter().enumerate() {
-            field.bg.vertex_data_mut(FixedVertexHandle::from_index(i)).h = hv;
+            let s = src[i] as usize;
+            let data = field.bg.vertex_data_mut(FixedVertexHandle::from_index(i));
+            data.h = hv;
+            data.src = [pos[s].x, pos[s].y, h0[s]];
         }
 
         // Corner angles at PSLG vertices, in-domain sectors only.
@@ -277,11 +283,11 @@ impl SizeField {
                 let hi = vs.iter().map(|v| v.data().h).fold(0.0, f64::max);
                 // Linear interpolation can grow faster than the grading
                 // allows inside a long thin background triangle; the cones
-                // of its corners bound it.
+                // whose apexes give the corners their sizes bound it.
                 let mut h = h.clamp(lo, hi);
                 for v in vs {
-                    let q = v.position();
-                    h = h.min(v.data().h + self.slope * (q.x - p[0]).hypot(q.y - p[1]));
+                    let [sx, sy, sh] = v.data().src;
+                    h = h.min(sh + self.slope * (sx - p[0]).hypot(sy - p[1]));
                 }
                 (h, vs[0].fix().index() as u32)
             }
@@ -388,9 +394,17 @@ where
         label[start.index()] = 0;
         queue.push_back(start);
         let mut best = (-1.0f64, [0.0, 0.0]);
+        // The domain is closed by constraint edges, so a component that
+        // reaches the convex hull through a non-constraint edge is outside
+        // it (this also catches hull slivers next to cut edges whose cut
+        // points round to just inside the hull).
+        let mut touches_hull = false;
         while let Some(f) = queue.pop_front() {
             members.push(f);
             let fh = cdt.face(f);
+            if !touches_hull {
+                touches_hull = fh.adjacent_edges().iter().any(|e| !e.is_constraint_edge() && e.rev().face().is_outer());
+            }
             // A few thousand candidates give a face far enough from the
             // component's edges.
             if members.len() > 4096 {
@@ -435,7 +449,7 @@ where
                 }
             }
         }
-        let region = classify(best.1);
+        let region = if touches_hull { crate::domain::OUTSIDE } else { classify(best.1) };
         for f in &members {
             label[f.index()] = region;
         }

@@ -80,6 +80,11 @@ impl SegmentGrid {
         ([f(lo[0], 0, self.nx), f(lo[1], 1, self.ny)], [f(hi[0], 0, self.nx), f(hi[1], 1, self.ny)])
     }
 
+    /// The grid's cell size.
+    pub(crate) fn cell_size(&self) -> f64 {
+        self.cell
+    }
+
     /// Call `f` with the index of every segment whose cells overlap the box
     /// (a segment may be reported more than once).
     pub(crate) fn query(&self, lo: Point, hi: Point, mut f: impl FnMut(usize)) {
@@ -112,7 +117,7 @@ pub(crate) fn point_segment_distance(p: Point, a: Point, b: Point) -> (f64, f64)
     let len2 = d[0] * d[0] + d[1] * d[1];
     let t = if len2 > 0.0 { (((p[0] - a[0]) * d[0] + (p[1] - a[1]) * d[1]) / len2).clamp(0.0, 1.0) } else { 0.0 };
     let q = [a[0] + t * d[0], a[1] + t * d[1]];
-    ((p[0] - q[0]).hypot(p[1] - q[1]), t)
+    (((p[0] - q[0]).powi(2) + (p[1] - q[1]).powi(2)).sqrt(), t)
 }
 
 /// Whether the closed segments `p1-p2` and `q1-q2` share any point (exact),

@@ -249,6 +249,9 @@ fn split_points(field: &SizeField, a: Point, b: Point, hint: u32) -> Vec<Point> 
 
 fn run(mut domain: Domain, min_angle_deg: f64, max_triangles: usize, start: Instant) -> Result<Mesh, MeshError> {
     let caps = domain.refine_for_features();
+    if std::env::var_os("FLUXWRIGHT_MESH_TIMING").is_some() {
+        eprintln!("features {:.3}s", start.elapsed().as_secs_f64());
+    }
     let domain = &domain;
     let (field, pslg) = SizeField::build(domain, &caps, min_angle_deg)?;
     let estimate = field.estimate_triangles();
@@ -340,13 +343,11 @@ fn build_cdt(domain: &Domain, field: &SizeField, pslg: &Pslg) -> Result<(MeshCdt
                 continue;
             }
             if cdt.try_add_constraint(w[0], w[1]).is_empty() {
-                cdt.add_constraint_and_split(w[0], w[1], |p| MeshVertex {
-                    pos: p,
-                    h: field.size_at([p.x, p.y], 0).0,
-                    bg: 0,
-                    pv: NONE,
-                    ends: [NONE; 2],
-                });
+                let p = cdt.vertex(w[0]).position();
+                return Err(MeshError::Triangulation(format!(
+                    "input edges near ({:.6}, {:.6}) cross or overlap too closely to be separated",
+                    p.x, p.y
+                )));
             }
         }
     }

@@ -169,7 +169,9 @@ impl<'p> Assembler<'p> {
         let n_loc = problem.order.local_dofs();
         let n_pairs = packed_len(n_loc);
         let n_tri = mesh.triangles.len();
-        let last = problem.regions.len() - 1;
+        // validate() guarantees an entry per region, so regions is non-empty
+        // whenever there is a triangle.
+        let last = problem.regions.len().saturating_sub(1);
         let region_slot = mesh
             .regions
             .iter()

@@ -206,22 +206,7 @@ impl Model {
     /// name, or every copy of a repeated shape given by its base name. Empty
     /// when nothing matches.
     pub fn shapes_named(&self, name: &str) -> Vec<usize> {
-        let exact: Vec<usize> = self
-            .shapes
-            .iter()
-            .enumerate()
-            .filter(|(_, s)| s.name == name)
-            .map(|(i, _)| i)
-            .collect();
-        if !exact.is_empty() {
-            return exact;
-        }
-        self.shapes
-            .iter()
-            .enumerate()
-            .filter(|(_, s)| s.base_name == name)
-            .map(|(i, _)| i)
-            .collect()
+        validate::shapes_named(&self.shapes, name)
     }
 
     /// Indices of the shapes holding turns of winding `winding` with the

@@ -648,7 +648,7 @@ fn dist(a: Point, b: Point) -> f64 {
     (a[0] - b[0]).hypot(a[1] - b[1])
 }
 
-fn shapes_named(shapes: &[Shape], name: &str) -> Vec<usize> {
+pub(crate) fn shapes_named(shapes: &[Shape], name: &str) -> Vec<usize> {
     let exact: Vec<usize> = shapes
         .iter()
         .enumerate()
