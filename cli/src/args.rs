@@ -33,7 +33,8 @@ pub enum Command {
         #[arg(short, long, value_name = "DIR")]
         out: PathBuf,
     },
-    /// Mesh and solve a model; write results.json and fields.vtu (ParaView).
+    /// Mesh and solve a model; write results.json, fields.vtu (ParaView) and
+    /// the mesh files.
     Solve {
         /// The model file (.toml).
         model: PathBuf,

@@ -275,25 +275,37 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
     Ok(code)
 }
 
-/// Mesh, solve and write results.json and fields.vtu. Exit code 3 when
+/// Mesh, solve and write results.json and fields.vtu (and the mesh files). Exit code 3 when
 /// Newton did not converge (the results are still written, marked).
 fn solve(model: &Model, out: &Path) -> Result<u8> {
     let start = Instant::now();
-    let (mesh, _) = build_mesh(model)?;
+    let (mesh, mesh_seconds) = build_mesh(model)?;
     let setup = study::problem(model, &mesh).map_err(|e| Failure::input(format!("{}: {e}", model.source)))?;
     let solution = nonlinear::solve(&setup.problem, &Default::default())
         .map_err(|e| Failure::input(format!("{}: the solve failed: {e}", model.source)))?;
     let results = study::results(model, &mesh, &setup, &solution, start.elapsed().as_secs_f64());
 
     let mut staging = Staging::new(out)?;
+    write_mesh_files(model, &mesh, mesh_seconds, &mut staging)?;
     let fields = solution.element_fields();
     let shape_index: Vec<i32> =
         mesh.regions.iter().map(|&r| if r == Mesh::OUTER_REGION { -1 } else { r as i32 }).collect();
-    let potential = solution.potential()[..mesh.nodes.len()].to_vec();
+    // Quadratic elements are written as VTK quadratic triangles, whose
+    // node order (corners, then mid-edges 0-1, 1-2, 2-0) is our dof order.
+    let dofs = solution.dofs();
+    let to_model_units = 1.0 / model.unit_to_m();
+    let points: Vec<[f64; 2]> = dofs.coords.iter().map(|p| [p[0] * to_model_units, p[1] * to_model_units]).collect();
+    let quadratic: Vec<[u32; 6]>;
+    let cells = if dofs.element_dofs.len() == 6 * mesh.triangles.len() {
+        quadratic = dofs.element_dofs.chunks_exact(6).map(|c| [c[0], c[1], c[2], c[3], c[4], c[5]]).collect();
+        vtu::Cells::QuadraticTriangles(&quadratic)
+    } else {
+        vtu::Cells::Triangles(&mesh.triangles)
+    };
     let doc = vtu::render(
-        &mesh.nodes,
-        vtu::Cells::Triangles(&mesh.triangles),
-        &[vtu::Array::Scalar("A", potential)],
+        &points,
+        cells,
+        &[vtu::Array::Scalar("A", solution.potential().to_vec())],
         &[
             vtu::Array::Vector2("B", fields.iter().map(|f| f.b).collect()),
             vtu::Array::Vector2("H", fields.iter().map(|f| f.h).collect()),

@@ -24,7 +24,10 @@ struct VertexSet {
 
 impl VertexSet {
     fn key(&self, p: Point) -> (i64, i64) {
-        ((p[0] / (2.0 * self.tol)).floor() as i64, (p[1] / (2.0 * self.tol)).floor() as i64)
+        (
+            (p[0] / (2.0 * self.tol)).floor() as i64,
+            (p[1] / (2.0 * self.tol)).floor() as i64,
+        )
     }
 
     /// The vertex within `tol` of `p`, or a new one.
@@ -50,8 +53,15 @@ impl VertexSet {
 }
 
 pub(crate) fn build(loops: &[PolyLoop], tol: f64) -> Arrangement {
-    let mut vs = VertexSet { points: Vec::new(), cells: HashMap::new(), tol };
-    let loop_ids: Vec<Vec<u32>> = loops.iter().map(|l| l.points.iter().map(|&p| vs.id(p)).collect()).collect();
+    let mut vs = VertexSet {
+        points: Vec::new(),
+        cells: HashMap::new(),
+        tol,
+    };
+    let loop_ids: Vec<Vec<u32>> = loops
+        .iter()
+        .map(|l| l.points.iter().map(|&p| vs.id(p)).collect())
+        .collect();
     let mut edges: Vec<[u32; 2]> = Vec::new();
     for ids in &loop_ids {
         let n = ids.len();
@@ -65,7 +75,10 @@ pub(crate) fn build(loops: &[PolyLoop], tol: f64) -> Arrangement {
     // Split until no vertex lies inside an edge and no two edges cross;
     // each round handles what the previous round's new vertices created.
     for _round in 0..6 {
-        let segs: Vec<[Point; 2]> = edges.iter().map(|e| [vs.points[e[0] as usize], vs.points[e[1] as usize]]).collect();
+        let segs: Vec<[Point; 2]> = edges
+            .iter()
+            .map(|e| [vs.points[e[0] as usize], vs.points[e[1] as usize]])
+            .collect();
         let grid = SegmentGrid::new(&segs);
         let mut splits: Vec<Vec<u32>> = vec![Vec::new(); edges.len()];
         let mut changed = false;
@@ -146,8 +159,15 @@ pub(crate) fn build(loops: &[PolyLoop], tol: f64) -> Arrangement {
         edges = next;
     }
     // Merge duplicates (shared edges of touching shapes).
-    let mut keyed: Vec<[u32; 2]> = edges.iter().map(|&[a, b]| if a < b { [a, b] } else { [b, a] }).collect();
+    let mut keyed: Vec<[u32; 2]> = edges
+        .iter()
+        .map(|&[a, b]| if a < b { [a, b] } else { [b, a] })
+        .collect();
     keyed.sort_unstable();
     keyed.dedup();
-    Arrangement { points: vs.points, edges: keyed, loop_ids }
+    Arrangement {
+        points: vs.points,
+        edges: keyed,
+        loop_ids,
+    }
 }

@@ -35,8 +35,16 @@ pub(crate) struct PolyLoop {
 /// The point at parameter `t` of a segment.
 pub(crate) fn point_at(s: &Segment, t: f64) -> Point {
     match *s {
-        Segment::Line { from, to } => [from[0] + t * (to[0] - from[0]), from[1] + t * (to[1] - from[1])],
-        Segment::Arc { center, radius, start, sweep } => polar(center, radius, start + t * sweep),
+        Segment::Line { from, to } => [
+            from[0] + t * (to[0] - from[0]),
+            from[1] + t * (to[1] - from[1]),
+        ],
+        Segment::Arc {
+            center,
+            radius,
+            start,
+            sweep,
+        } => polar(center, radius, start + t * sweep),
     }
 }
 
@@ -67,7 +75,13 @@ pub(crate) struct Domain {
 }
 
 impl PolyLoop {
-    pub(crate) fn new(points: Vec<Point>, seg: Vec<u32>, param: Vec<f64>, owner: u32, own_size: f64) -> PolyLoop {
+    pub(crate) fn new(
+        points: Vec<Point>,
+        seg: Vec<u32>,
+        param: Vec<f64>,
+        owner: u32,
+        own_size: f64,
+    ) -> PolyLoop {
         let mut lo = [f64::INFINITY; 2];
         let mut hi = [f64::NEG_INFINITY; 2];
         for p in &points {
@@ -76,7 +90,14 @@ impl PolyLoop {
                 hi[k] = hi[k].max(p[k]);
             }
         }
-        PolyLoop { points, seg, param, owner, own_size, bbox: (lo, hi) }
+        PolyLoop {
+            points,
+            seg,
+            param,
+            owner,
+            own_size,
+            bbox: (lo, hi),
+        }
     }
 
     /// Ray-cast crossing parity of `p` (half-open rule on y).
@@ -145,9 +166,8 @@ impl Domain {
                 local += 1;
                 let pieces = match *s {
                     Segment::Line { .. } => (s.length() / own_size).ceil().max(1.0) as usize,
-                    Segment::Arc { sweep, .. } => {
-                        arc_pieces(sweep, chord_fraction).max((s.length() / own_size).ceil() as usize)
-                    }
+                    Segment::Arc { sweep, .. } => arc_pieces(sweep, chord_fraction)
+                        .max((s.length() / own_size).ceil() as usize),
                 };
                 for j in 0..pieces {
                     let t = j as f64 / pieces as f64;
@@ -156,7 +176,8 @@ impl Domain {
                     param.push(t);
                 }
             }
-            self.loops.push(PolyLoop::new(points, seg, param, owner, own_size));
+            self.loops
+                .push(PolyLoop::new(points, seg, param, owner, own_size));
         }
     }
 
@@ -179,7 +200,12 @@ impl Domain {
         if !inside_outer {
             return OUTSIDE;
         }
-        shape_parity.iter().filter(|e| e.1).map(|e| e.0).max().unwrap_or(Mesh::OUTER_REGION)
+        shape_parity
+            .iter()
+            .filter(|e| e.1)
+            .map(|e| e.0)
+            .max()
+            .unwrap_or(Mesh::OUTER_REGION)
     }
 
     /// Size of a region label.
@@ -216,12 +242,18 @@ impl Domain {
                     let a = l.points[i];
                     let b = l.points[j];
                     let len = (b[0] - a[0]).hypot(b[1] - a[1]);
-                    let Some(curve) = self.curves[l.seg[i] as usize] else { continue };
+                    let Some(curve) = self.curves[l.seg[i] as usize] else {
+                        continue;
+                    };
                     if !(feature.is_finite() && len > 1.5 * feature) {
                         continue;
                     }
                     let t0 = l.param[i];
-                    let t1 = if l.seg[j] == l.seg[i] && l.param[j] > t0 { l.param[j] } else { 1.0 };
+                    let t1 = if l.seg[j] == l.seg[i] && l.param[j] > t0 {
+                        l.param[j]
+                    } else {
+                        1.0
+                    };
                     // At most 8 pieces a round: thin spots are refined
                     // progressively instead of the whole edge at once.
                     let pieces = ((len / feature).ceil() as usize).min(8);
@@ -288,7 +320,10 @@ impl Domain {
                 let own = [l.seg[(i + n - 1) % n], l.seg[i]];
                 let corner = own[0] != own[1];
                 let excluded = |s: u32| -> bool {
-                    own.contains(&s) || (!corner && (self.segs[own[0] as usize].prev == s || self.segs[own[0] as usize].next == s))
+                    own.contains(&s)
+                        || (!corner
+                            && (self.segs[own[0] as usize].prev == s
+                                || self.segs[own[0] as usize].next == s))
                 };
                 // Only features closer than this can lower the size.
                 let radius = ELEMENTS_ACROSS_FEATURE * l.own_size.min(self.max_size);
@@ -315,24 +350,32 @@ impl Domain {
                         // vertex's own segments is a shared corner, not a gap.
                         let q = [a[0] + t * (b[0] - a[0]), a[1] + t * (b[1] - a[1])];
                         let mut on_own = false;
-                        grid.query([q[0] - touch, q[1] - touch], [q[0] + touch, q[1] + touch], |k| {
-                            if !on_own && own.contains(&edge_seg[k]) {
-                                let [c, e] = edges[k];
-                                on_own = point_segment_distance(q, c, e).0 <= touch;
-                            }
-                        });
+                        grid.query(
+                            [q[0] - touch, q[1] - touch],
+                            [q[0] + touch, q[1] + touch],
+                            |k| {
+                                if !on_own && own.contains(&edge_seg[k]) {
+                                    let [c, e] = edges[k];
+                                    on_own = point_segment_distance(q, c, e).0 <= touch;
+                                }
+                            },
+                        );
                         // Near a crossing of the two segments the gap is a
                         // corner that closes at the crossing point (handled
                         // by the angle rules), not a thin feature.
                         let reach = 2.0 * d;
-                        grid.query([p[0] - reach, p[1] - reach], [p[0] + reach, p[1] + reach], |k| {
-                            if !on_own && own.contains(&edge_seg[k]) {
-                                let [c, e] = edges[k];
-                                if let Some(x) = segments_touch(c, e, a, b) {
-                                    on_own = (x[0] - p[0]).hypot(x[1] - p[1]) <= reach;
+                        grid.query(
+                            [p[0] - reach, p[1] - reach],
+                            [p[0] + reach, p[1] + reach],
+                            |k| {
+                                if !on_own && own.contains(&edge_seg[k]) {
+                                    let [c, e] = edges[k];
+                                    if let Some(x) = segments_touch(c, e, a, b) {
+                                        on_own = (x[0] - p[0]).hypot(x[1] - p[1]) <= reach;
+                                    }
                                 }
-                            }
-                        });
+                            },
+                        );
                         if !on_own {
                             best = d;
                             break;

@@ -32,7 +32,12 @@ impl Segment {
     pub fn start_point(&self) -> Point {
         match *self {
             Segment::Line { from, .. } => from,
-            Segment::Arc { center, radius, start, .. } => polar(center, radius, start),
+            Segment::Arc {
+                center,
+                radius,
+                start,
+                ..
+            } => polar(center, radius, start),
         }
     }
 
@@ -40,7 +45,12 @@ impl Segment {
     pub fn end_point(&self) -> Point {
         match *self {
             Segment::Line { to, .. } => to,
-            Segment::Arc { center, radius, start, sweep } => polar(center, radius, start + sweep),
+            Segment::Arc {
+                center,
+                radius,
+                start,
+                sweep,
+            } => polar(center, radius, start + sweep),
         }
     }
 
@@ -56,17 +66,31 @@ impl Segment {
     fn signed_area_term(&self) -> f64 {
         match *self {
             Segment::Line { from, to } => 0.5 * (from[0] * to[1] - to[0] * from[1]),
-            Segment::Arc { center, radius, sweep, .. } => {
+            Segment::Arc {
+                center,
+                radius,
+                sweep,
+                ..
+            } => {
                 let (p, q) = (self.start_point(), self.end_point());
-                0.5 * (center[0] * (q[1] - p[1]) - center[1] * (q[0] - p[0]) + radius * radius * sweep)
+                0.5 * (center[0] * (q[1] - p[1]) - center[1] * (q[0] - p[0])
+                    + radius * radius * sweep)
             }
         }
     }
 
     fn transformed(&self, f: &impl Fn(Point) -> Point, rotation: f64) -> Segment {
         match *self {
-            Segment::Line { from, to } => Segment::Line { from: f(from), to: f(to) },
-            Segment::Arc { center, radius, start, sweep } => Segment::Arc {
+            Segment::Line { from, to } => Segment::Line {
+                from: f(from),
+                to: f(to),
+            },
+            Segment::Arc {
+                center,
+                radius,
+                start,
+                sweep,
+            } => Segment::Arc {
                 center: f(center),
                 radius,
                 start: start + rotation,
@@ -143,7 +167,12 @@ impl Outline {
         }
         Ok(Outline {
             loops: vec![Loop {
-                segments: vec![Segment::Arc { center, radius, start: 0.0, sweep: std::f64::consts::TAU }],
+                segments: vec![Segment::Arc {
+                    center,
+                    radius,
+                    start: 0.0,
+                    sweep: std::f64::consts::TAU,
+                }],
             }],
         })
     }
@@ -156,9 +185,14 @@ impl Outline {
         }
         let n = points.len();
         let segments = (0..n)
-            .map(|i| Segment::Line { from: points[i], to: points[(i + 1) % n] })
+            .map(|i| Segment::Line {
+                from: points[i],
+                to: points[(i + 1) % n],
+            })
             .collect();
-        let outline = Outline { loops: vec![Loop { segments }] };
+        let outline = Outline {
+            loops: vec![Loop { segments }],
+        };
         outline.validate()?;
         Ok(outline)
     }
@@ -173,7 +207,14 @@ impl Outline {
         start_deg: f64,
         end_deg: f64,
     ) -> Result<Outline, GeometryError> {
-        check_finite(&[center[0], center[1], inner_radius, outer_radius, start_deg, end_deg])?;
+        check_finite(&[
+            center[0],
+            center[1],
+            inner_radius,
+            outer_radius,
+            start_deg,
+            end_deg,
+        ])?;
         if !(inner_radius >= 0.0 && outer_radius > inner_radius) {
             return Err(GeometryError::BadRadius(format!(
                 "inner radius {inner_radius}, outer radius {outer_radius}"
@@ -186,29 +227,63 @@ impl Outline {
         let (start, sweep) = (start_deg.to_radians(), sweep_deg.to_radians());
         if (sweep_deg - 360.0).abs() < 1e-12 {
             let mut loops = vec![Loop {
-                segments: vec![Segment::Arc { center, radius: outer_radius, start, sweep }],
+                segments: vec![Segment::Arc {
+                    center,
+                    radius: outer_radius,
+                    start,
+                    sweep,
+                }],
             }];
             if inner_radius > 0.0 {
                 loops.push(Loop {
-                    segments: vec![Segment::Arc { center, radius: inner_radius, start, sweep: -sweep }],
+                    segments: vec![Segment::Arc {
+                        center,
+                        radius: inner_radius,
+                        start,
+                        sweep: -sweep,
+                    }],
                 });
             }
             return Ok(Outline { loops });
         }
         let mut segments = Vec::with_capacity(4);
-        let outer = Segment::Arc { center, radius: outer_radius, start, sweep };
+        let outer = Segment::Arc {
+            center,
+            radius: outer_radius,
+            start,
+            sweep,
+        };
         if inner_radius > 0.0 {
-            let inner = Segment::Arc { center, radius: inner_radius, start: start + sweep, sweep: -sweep };
-            segments.push(Segment::Line { from: inner.end_point(), to: outer.start_point() });
+            let inner = Segment::Arc {
+                center,
+                radius: inner_radius,
+                start: start + sweep,
+                sweep: -sweep,
+            };
+            segments.push(Segment::Line {
+                from: inner.end_point(),
+                to: outer.start_point(),
+            });
             segments.push(outer);
-            segments.push(Segment::Line { from: outer.end_point(), to: inner.start_point() });
+            segments.push(Segment::Line {
+                from: outer.end_point(),
+                to: inner.start_point(),
+            });
             segments.push(inner);
         } else {
-            segments.push(Segment::Line { from: center, to: outer.start_point() });
+            segments.push(Segment::Line {
+                from: center,
+                to: outer.start_point(),
+            });
             segments.push(outer);
-            segments.push(Segment::Line { from: outer.end_point(), to: center });
+            segments.push(Segment::Line {
+                from: outer.end_point(),
+                to: center,
+            });
         }
-        Ok(Outline { loops: vec![Loop { segments }] })
+        Ok(Outline {
+            loops: vec![Loop { segments }],
+        })
     }
 
     /// This outline moved by `d`.
@@ -234,7 +309,13 @@ impl Outline {
             loops: self
                 .loops
                 .iter()
-                .map(|l| Loop { segments: l.segments.iter().map(|s| s.transformed(f, rotation)).collect() })
+                .map(|l| Loop {
+                    segments: l
+                        .segments
+                        .iter()
+                        .map(|s| s.transformed(f, rotation))
+                        .collect(),
+                })
                 .collect(),
         }
     }
@@ -277,7 +358,13 @@ impl Outline {
         for s in self.loops.iter().flat_map(|l| &l.segments) {
             add(s.start_point());
             add(s.end_point());
-            if let Segment::Arc { center, radius, start, sweep } = *s {
+            if let Segment::Arc {
+                center,
+                radius,
+                start,
+                sweep,
+            } = *s
+            {
                 // The axis extremes of the circle that the arc passes through.
                 for k in 0..4 {
                     let a = k as f64 * std::f64::consts::FRAC_PI_2;
@@ -301,10 +388,19 @@ impl Outline {
                 for s in &l.segments {
                     match *s {
                         Segment::Line { from, .. } => pts.push(from),
-                        Segment::Arc { center, radius, start, sweep } => {
+                        Segment::Arc {
+                            center,
+                            radius,
+                            start,
+                            sweep,
+                        } => {
                             let n = arc_pieces(sweep, chord_fraction);
                             for k in 0..n {
-                                pts.push(polar(center, radius, start + sweep * k as f64 / n as f64));
+                                pts.push(polar(
+                                    center,
+                                    radius,
+                                    start + sweep * k as f64 / n as f64,
+                                ));
                             }
                         }
                     }
@@ -344,9 +440,16 @@ fn loop_contains(l: &Loop, p: Point) -> bool {
     for s in &l.segments {
         match *s {
             Segment::Line { from, to } => {
-                crossing(&mut inside, from, to, &|| from[0] + (p[1] - from[1]) * (to[0] - from[0]) / (to[1] - from[1]));
+                crossing(&mut inside, from, to, &|| {
+                    from[0] + (p[1] - from[1]) * (to[0] - from[0]) / (to[1] - from[1])
+                });
             }
-            Segment::Arc { center, radius, sweep, .. } if sweep.abs() >= std::f64::consts::TAU - 1e-12 => {
+            Segment::Arc {
+                center,
+                radius,
+                sweep,
+                ..
+            } if sweep.abs() >= std::f64::consts::TAU - 1e-12 => {
                 // A full circle: its two end angles round to different y, so
                 // count its two crossings directly.
                 let dy = p[1] - center[1];
@@ -359,7 +462,12 @@ fn loop_contains(l: &Loop, p: Point) -> bool {
                     }
                 }
             }
-            Segment::Arc { center, radius, start, sweep } => {
+            Segment::Arc {
+                center,
+                radius,
+                start,
+                sweep,
+            } => {
                 for (a0, a1) in y_monotone_pieces(start, sweep) {
                     let (pa, pb) = (polar(center, radius, a0), polar(center, radius, a1));
                     let right_half = (0.5 * (a0 + a1)).cos() >= 0.0;
@@ -384,7 +492,11 @@ fn loop_contains(l: &Loop, p: Point) -> bool {
 pub(crate) fn y_monotone_pieces(start: f64, sweep: f64) -> Vec<(f64, f64)> {
     use std::f64::consts::{FRAC_PI_2, PI};
     let end = start + sweep;
-    let (lo, hi) = if sweep >= 0.0 { (start, end) } else { (end, start) };
+    let (lo, hi) = if sweep >= 0.0 {
+        (start, end)
+    } else {
+        (end, start)
+    };
     let mut cuts = vec![lo];
     let mut k = ((lo - FRAC_PI_2) / PI).floor() + 1.0;
     loop {
@@ -415,7 +527,11 @@ pub(crate) fn angle_in_arc(a: f64, start: f64, sweep: f64) -> bool {
     if sweep.abs() >= tau - 1e-15 {
         return true;
     }
-    let (lo, len) = if sweep >= 0.0 { (start, sweep) } else { (start + sweep, -sweep) };
+    let (lo, len) = if sweep >= 0.0 {
+        (start, sweep)
+    } else {
+        (start + sweep, -sweep)
+    };
     let rel = (a - lo).rem_euclid(tau);
     rel < len
 }
@@ -458,7 +574,9 @@ mod tests {
 
     #[test]
     fn rotated_rectangle_area_and_containment() {
-        let r = Outline::rectangle([0.0, 0.0], [4.0, 1.0]).unwrap().rotated(30.0, [0.0, 0.0]);
+        let r = Outline::rectangle([0.0, 0.0], [4.0, 1.0])
+            .unwrap()
+            .rotated(30.0, [0.0, 0.0]);
         assert!((r.area() - 4.0).abs() < 1e-12);
         let (s, c) = 30f64.to_radians().sin_cos();
         // The rectangle's centre (2, 0.5) rotated by 30°.
@@ -505,27 +623,51 @@ mod tests {
         }
         // Two overlapping circles as loops of one outline.
         let mut two = Outline::circle([0.0, 0.0], 1.0).unwrap();
-        two.loops.extend(Outline::circle([1.5, 0.0], 1.0).unwrap().loops);
-        assert!(matches!(two.validate(), Err(GeometryError::SelfIntersection(..))));
+        two.loops
+            .extend(Outline::circle([1.5, 0.0], 1.0).unwrap().loops);
+        assert!(matches!(
+            two.validate(),
+            Err(GeometryError::SelfIntersection(..))
+        ));
         // Nested circles are a valid annulus.
         let mut ring = Outline::circle([0.0, 0.0], 2.0).unwrap();
-        ring.loops.extend(Outline::circle([0.1, 0.0], 1.0).unwrap().loops);
+        ring.loops
+            .extend(Outline::circle([0.1, 0.0], 1.0).unwrap().loops);
         assert!(ring.validate().is_ok());
         assert!((ring.area() - PI * 3.0).abs() < 1e-12);
         // An open loop is refused.
         let open = Outline {
             loops: vec![Loop {
                 segments: vec![
-                    Segment::Line { from: [0.0, 0.0], to: [1.0, 0.0] },
-                    Segment::Line { from: [1.0, 0.0], to: [1.0, 1.0] },
-                    Segment::Line { from: [1.0, 1.0], to: [0.1, 0.0] },
+                    Segment::Line {
+                        from: [0.0, 0.0],
+                        to: [1.0, 0.0],
+                    },
+                    Segment::Line {
+                        from: [1.0, 0.0],
+                        to: [1.0, 1.0],
+                    },
+                    Segment::Line {
+                        from: [1.0, 1.0],
+                        to: [0.1, 0.0],
+                    },
                 ],
             }],
         };
         assert!(open.validate().is_err());
         // A polygon touching itself at a vertex is refused.
-        let touch = Outline::polygon(&[[0.0, 0.0], [2.0, 0.0], [1.0, 1.0], [2.0, 2.0], [0.0, 2.0], [1.0, 1.0]]);
+        let touch = Outline::polygon(&[
+            [0.0, 0.0],
+            [2.0, 0.0],
+            [1.0, 1.0],
+            [2.0, 2.0],
+            [0.0, 2.0],
+            [1.0, 1.0],
+        ]);
         assert!(touch.is_err());
-        assert!(matches!(Outline::polygon(&[[0.0, 0.0], [f64::NAN, 0.0], [1.0, 1.0]]), Err(GeometryError::NotFinite)));
+        assert!(matches!(
+            Outline::polygon(&[[0.0, 0.0], [f64::NAN, 0.0], [1.0, 1.0]]),
+            Err(GeometryError::NotFinite)
+        ));
     }
 }

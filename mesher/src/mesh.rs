@@ -153,7 +153,10 @@ impl Mesh {
         let mut sum_min = 0.0;
         let mut len = [f64::INFINITY, 0.0f64];
         for (t, tri) in self.triangles.iter().enumerate() {
-            let m = self.triangle_angles(t).into_iter().fold(f64::INFINITY, f64::min);
+            let m = self
+                .triangle_angles(t)
+                .into_iter()
+                .fold(f64::INFINITY, f64::min);
             min_angle = min_angle.min(m);
             sum_min += m;
             for k in 0..3 {
@@ -166,9 +169,17 @@ impl Mesh {
         }
         let n = self.triangles.len().max(1) as f64;
         QualityStats {
-            min_angle_deg: if self.triangles.is_empty() { 0.0 } else { min_angle.to_degrees() },
+            min_angle_deg: if self.triangles.is_empty() {
+                0.0
+            } else {
+                min_angle.to_degrees()
+            },
             mean_min_angle_deg: (sum_min / n).to_degrees(),
-            edge_length_range: if self.triangles.is_empty() { [0.0, 0.0] } else { len },
+            edge_length_range: if self.triangles.is_empty() {
+                [0.0, 0.0]
+            } else {
+                len
+            },
         }
     }
 
@@ -194,7 +205,10 @@ impl Mesh {
             }
             triangle_edges[slot as usize / 3][slot as usize % 3] = (edges.len() - 1) as u32;
         }
-        EdgeTopology { edges, triangle_edges }
+        EdgeTopology {
+            edges,
+            triangle_edges,
+        }
     }
 
     /// Mid-edge node coordinates for P2 elements, in the order of
@@ -225,7 +239,9 @@ impl Mesh {
         let n = self.nodes.len() as u32;
         for (t, tri) in self.triangles.iter().enumerate() {
             if tri.iter().any(|&i| i >= n) {
-                return Err(MeshError::Invariant(format!("triangle {t} has a node index out of range")));
+                return Err(MeshError::Invariant(format!(
+                    "triangle {t} has a node index out of range"
+                )));
             }
             let area = self.triangle_area(t);
             if !(area > 0.0) {
@@ -246,13 +262,20 @@ impl Mesh {
             .iter()
             .map(|e| {
                 let [a, b] = e.nodes;
-                if a < b { [a, b] } else { [b, a] }
+                if a < b {
+                    [a, b]
+                } else {
+                    [b, a]
+                }
             })
             .collect();
         boundary.sort_unstable();
         for (e, &c) in count.iter().enumerate() {
             if c > 2 {
-                return Err(MeshError::Invariant(format!("edge {:?} is shared by {c} triangles", topo.edges[e])));
+                return Err(MeshError::Invariant(format!(
+                    "edge {:?} is shared by {c} triangles",
+                    topo.edges[e]
+                )));
             }
             if c == 1 && boundary.binary_search(&topo.edges[e]).is_err() {
                 return Err(MeshError::Invariant(format!(

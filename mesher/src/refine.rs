@@ -7,12 +7,18 @@
 //! Edges next to input corners below 90° are split on concentric shells
 //! (distances from the corner rounded to powers of two) so that the two legs
 //! stop encroaching each other; triangles whose shortest edge joins the two
-//! legs of a corner below 60° are left alone (the input angle is reported).
+//! legs of a corner below the target angle are left alone (no mesh can do
+//! better there; the corner is reported).
 
 use std::collections::VecDeque;
 
-use spade::handles::{FixedDirectedEdgeHandle, FixedFaceHandle, FixedUndirectedEdgeHandle, FixedVertexHandle, InnerTag};
-use spade::{ConstrainedDelaunayTriangulation, HasPosition, Point2, PositionInTriangulation, Triangulation};
+use spade::handles::{
+    FixedDirectedEdgeHandle, FixedFaceHandle, FixedUndirectedEdgeHandle, FixedVertexHandle,
+    InnerTag,
+};
+use spade::{
+    ConstrainedDelaunayTriangulation, HasPosition, Point2, PositionInTriangulation, Triangulation,
+};
 
 use crate::domain::OUTSIDE;
 use crate::geometry::Point;
@@ -101,7 +107,10 @@ fn circumcenter(p: [Point2<f64>; 3]) -> Point2<f64> {
     let d = 2.0 * (bx * cy - by * cx);
     let b2 = bx * bx + by * by;
     let c2 = cx * cx + cy * cy;
-    Point2::new(p[0].x + (cy * b2 - by * c2) / d, p[0].y + (bx * c2 - cx * b2) / d)
+    Point2::new(
+        p[0].x + (cy * b2 - by * c2) / d,
+        p[0].y + (bx * c2 - cx * b2) / d,
+    )
 }
 
 impl<'a> Refiner<'a> {
@@ -125,7 +134,10 @@ impl<'a> Refiner<'a> {
             max_vertices,
             faces: VecDeque::new(),
             segments: VecDeque::new(),
-            outcome: RefineOutcome { met: true, ..Default::default() },
+            outcome: RefineOutcome {
+                met: true,
+                ..Default::default()
+            },
             broken: false,
             stack: Vec::new(),
             encroached: Vec::new(),
@@ -140,7 +152,11 @@ impl<'a> Refiner<'a> {
     }
 
     fn push_segment(&mut self, e: FixedUndirectedEdgeHandle) {
-        let [a, b] = self.cdt.undirected_edge(e).vertices().map(|v| v.fix().index() as u32);
+        let [a, b] = self
+            .cdt
+            .undirected_edge(e)
+            .vertices()
+            .map(|v| v.fix().index() as u32);
         self.segments.push_back((e, [a, b]));
     }
 
@@ -181,7 +197,12 @@ impl<'a> Refiner<'a> {
         for f in faces {
             self.push_face(f);
         }
-        let segs: Vec<_> = self.cdt.undirected_edges().filter(|e| e.is_constraint_edge()).map(|e| e.fix()).collect();
+        let segs: Vec<_> = self
+            .cdt
+            .undirected_edges()
+            .filter(|e| e.is_constraint_edge())
+            .map(|e| e.fix())
+            .collect();
         for e in segs {
             self.push_segment(e);
         }
@@ -219,7 +240,8 @@ impl<'a> Refiner<'a> {
                     continue;
                 }
                 let eh = self.cdt.undirected_edge(e);
-                if !eh.is_constraint_edge() || eh.vertices().map(|v| v.fix().index() as u32) != key {
+                if !eh.is_constraint_edge() || eh.vertices().map(|v| v.fix().index() as u32) != key
+                {
                     continue;
                 }
                 if self.is_encroached(e) {
@@ -316,14 +338,24 @@ impl<'a> Refiner<'a> {
     }
 
     fn refine_face(&mut self, f: FixedFaceHandle<InnerTag>) {
-        let Some(size_bad) = self.badness(f) else { return };
+        let Some(size_bad) = self.badness(f) else {
+            return;
+        };
         let fh = self.cdt.face(f);
         let p = fh.positions();
         let hint = fh.vertices()[0].fix();
         let bg_hint = fh.vertices()[0].data().bg;
         if self.field.has_outside {
-            let c = [(p[0].x + p[1].x + p[2].x) / 3.0, (p[0].y + p[1].y + p[2].y) / 3.0];
-            if self.field.label_at(c, FixedVertexHandle::from_index(bg_hint as usize)).0 == OUTSIDE {
+            let c = [
+                (p[0].x + p[1].x + p[2].x) / 3.0,
+                (p[0].y + p[1].y + p[2].y) / 3.0,
+            ];
+            if self
+                .field
+                .label_at(c, FixedVertexHandle::from_index(bg_hint as usize))
+                .0
+                == OUTSIDE
+            {
                 return;
             }
         }
@@ -360,7 +392,9 @@ impl<'a> Refiner<'a> {
                     let mut any = false;
                     for &e in &list {
                         // An earlier split in this list may have removed it.
-                        if e.index() < self.cdt.num_undirected_edges() && self.cdt.is_constraint_edge(e) {
+                        if e.index() < self.cdt.num_undirected_edges()
+                            && self.cdt.is_constraint_edge(e)
+                        {
                             any |= self.split_segment(e);
                         }
                     }
@@ -374,7 +408,13 @@ impl<'a> Refiner<'a> {
                 }
                 let (h, bg) = self.field.size_at(pt(c), bg_hint);
                 let n0 = self.cdt.num_vertices();
-                let v = MeshVertex { pos: c, h, bg, pv: NONE, ends: [NONE, NONE] };
+                let v = MeshVertex {
+                    pos: c,
+                    h,
+                    bg,
+                    pv: NONE,
+                    ends: [NONE, NONE],
+                };
                 match self.cdt.insert_with_hint(v, hint) {
                     Ok(v) if self.cdt.num_vertices() > n0 => self.after_insert(v),
                     _ => self.outcome.met = false,
@@ -439,7 +479,8 @@ impl<'a> Refiner<'a> {
     fn find_encroached(&mut self, g: FixedFaceHandle<InnerTag>, c: Point2<f64>) {
         self.encroached.clear();
         self.stack.clear();
-        self.stack.extend(self.cdt.face(g).adjacent_edges().map(|e| e.fix()));
+        self.stack
+            .extend(self.cdt.face(g).adjacent_edges().map(|e| e.fix()));
         let mut guard = 0;
         while let Some(e) = self.stack.pop() {
             guard += 1;
@@ -506,7 +547,13 @@ impl<'a> Refiner<'a> {
             [da.pv, db.pv]
         };
         let (h, bg) = self.field.size_at(pt(m), da.bg);
-        let vertex = MeshVertex { pos: m, h, bg, pv: NONE, ends };
+        let vertex = MeshVertex {
+            pos: m,
+            h,
+            bg,
+            pv: NONE,
+            ends,
+        };
         let n0 = self.cdt.num_vertices();
         let on_edge = matches!(
             self.cdt.locate_with_hint(m, a),
@@ -520,7 +567,10 @@ impl<'a> Refiner<'a> {
         } else {
             // The split point is not exactly on the edge in floating point:
             // take the constraint out, insert, and put the two halves back.
-            if matches!(self.cdt.locate_with_hint(m, a), PositionInTriangulation::OnVertex(_)) {
+            if matches!(
+                self.cdt.locate_with_hint(m, a),
+                PositionInTriangulation::OnVertex(_)
+            ) {
                 return false;
             }
             self.cdt.remove_constraint_edge(e);

@@ -12,7 +12,9 @@ use std::cmp::Ordering;
 use std::collections::{BinaryHeap, VecDeque};
 
 use spade::handles::{FixedFaceHandle, FixedVertexHandle, InnerTag};
-use spade::{ConstrainedDelaunayTriangulation, HasPosition, Point2, PositionInTriangulation, Triangulation};
+use spade::{
+    ConstrainedDelaunayTriangulation, HasPosition, Point2, PositionInTriangulation, Triangulation,
+};
 
 use crate::domain::{Domain, OUTSIDE};
 use crate::geometry::Point;
@@ -50,8 +52,8 @@ pub(crate) struct Pslg {
     /// Vertices with an in-domain corner below 90° (split around them on
     /// concentric shells to stop mutual encroachment).
     pub shell: Vec<bool>,
-    /// Vertices with an in-domain corner below 60°, where Delaunay
-    /// refinement cannot meet the angle between the two legs.
+    /// Vertices with an in-domain corner below the target angle, where no
+    /// mesh can meet the angle between the two legs.
     pub sharp: Vec<bool>,
     /// In-domain corners below the requested minimum angle.
     pub small_angles: Vec<Point>,
@@ -92,7 +94,11 @@ fn tri_err(e: spade::InsertionError) -> MeshError {
 
 impl SizeField {
     /// Build the background and the PSLG from the domain.
-    pub(crate) fn build(domain: &Domain, caps: &[Vec<f64>], min_angle_deg: f64) -> Result<(SizeField, Pslg), MeshError> {
+    pub(crate) fn build(
+        domain: &Domain,
+        caps: &[Vec<f64>],
+        min_angle_deg: f64,
+    ) -> Result<(SizeField, Pslg), MeshError> {
         // Snap the polylines into a planar graph first: spade needs
         // constraints that neither cross nor nearly overlap.
         let (mut lo, mut hi) = ([f64::INFINITY; 2], [f64::NEG_INFINITY; 2]);
@@ -102,12 +108,14 @@ impl SizeField {
                 hi[k] = hi[k].max(p[k]);
             }
         }
-        let tol = 1e-9 * (hi[0] - lo[0]).max(hi[1] - lo[1]).max(lo[0].abs()).max(lo[1].abs()).max(hi[0].abs()).max(hi[1].abs());
-        let t0 = std::time::Instant::now();
+        let tol = 1e-9
+            * (hi[0] - lo[0])
+                .max(hi[1] - lo[1])
+                .max(lo[0].abs())
+                .max(lo[1].abs())
+                .max(hi[0].abs())
+                .max(hi[1].abs());
         let arr = crate::arrangement::build(&domain.loops, tol);
-        if std::env::var_os("FLUXWRIGHT_MESH_TIMING").is_some() {
-            eprintln!("arrangement {:.3}s", t0.elapsed().as_secs_f64());
-        }
         let mut cap_of = vec![f64::INFINITY; arr.points.len()];
         for ((l, cap), ids) in domain.loops.iter().zip(caps).zip(&arr.loop_ids) {
             for (&c, &id) in cap.iter().zip(ids) {
@@ -118,7 +126,11 @@ impl SizeField {
         let mut last: Option<FixedVertexHandle> = None;
         let mut handles = Vec::with_capacity(arr.points.len());
         for p in &arr.points {
-            let v = BgVertex { pos: p2(*p), h: f64::INFINITY, src: [0.0; 3] };
+            let v = BgVertex {
+                pos: p2(*p),
+                h: f64::INFINITY,
+                src: [0.0; 3],
+            };
             let h = match last {
                 Some(hint) => bg.insert_with_hint(v, hint),
                 None => bg.insert(v),
@@ -134,7 +146,10 @@ impl SizeField {
             last = Some(h);
         }
         for &[a, b] in &arr.edges {
-            if bg.try_add_constraint(handles[a as usize], handles[b as usize]).is_empty() {
+            if bg
+                .try_add_constraint(handles[a as usize], handles[b as usize])
+                .is_empty()
+            {
                 let p = arr.points[a as usize];
                 return Err(MeshError::Triangulation(format!(
                     "input edges near ({:.6}, {:.6}) cross or overlap too closely to be separated",
@@ -159,8 +174,15 @@ impl SizeField {
                 for i in 0..nx {
                     let ii = if j % 2 == 0 { i } else { nx - 1 - i };
                     // Offset from the box so grid points avoid axis-aligned input.
-                    let p = [lo[0] + (ii as f64 + 0.5 + 0.0137) * spacing, lo[1] + (j as f64 + 0.5 + 0.0291) * spacing];
-                    let v = BgVertex { pos: p2(p), h: f64::INFINITY, src: [0.0; 3] };
+                    let p = [
+                        lo[0] + (ii as f64 + 0.5 + 0.0137) * spacing,
+                        lo[1] + (j as f64 + 0.5 + 0.0291) * spacing,
+                    ];
+                    let v = BgVertex {
+                        pos: p2(p),
+                        h: f64::INFINITY,
+                        src: [0.0; 3],
+                    };
                     let h = match last {
                         Some(hint) => bg.insert_with_hint(v, hint),
                         None => bg.insert(v),
@@ -173,8 +195,16 @@ impl SizeField {
         cap_of.resize(bg.num_vertices(), f64::INFINITY);
 
         let face_label = label_components(&bg, |p| domain.classify(p));
-        let mut field = SizeField { has_outside: false, face_label, bg, slope: domain.growth - 1.0 };
-        field.has_outside = field.bg.inner_faces().any(|f| field.face_label[f.fix().index()] == OUTSIDE);
+        let mut field = SizeField {
+            has_outside: false,
+            face_label,
+            bg,
+            slope: domain.growth - 1.0,
+        };
+        field.has_outside = field
+            .bg
+            .inner_faces()
+            .any(|f| field.face_label[f.fix().index()] == OUTSIDE);
 
         // Initial sizes: the smallest region size around each vertex.
         let nv = field.bg.num_vertices();
@@ -241,7 +271,10 @@ impl SizeField {
                 .iter()
                 .map(|&j| {
                     let q = points[j as usize];
-                    ((q[1] - p[1]).atan2(q[0] - p[0]), (q[0] - p[0]).hypot(q[1] - p[1]))
+                    (
+                        (q[1] - p[1]).atan2(q[0] - p[0]),
+                        (q[0] - p[0]).hypot(q[1] - p[1]),
+                    )
                 })
                 .collect();
             dirs.sort_by(|a, b| a.0.total_cmp(&b.0));
@@ -258,13 +291,24 @@ impl SizeField {
                 }
             }
             shell[i] = smallest < 0.5 * std::f64::consts::PI - 1e-9;
-            sharp[i] = smallest < std::f64::consts::FRAC_PI_3 - 1e-9;
+            sharp[i] = smallest < min_angle.min(std::f64::consts::FRAC_PI_3) - 1e-9;
             if smallest < min_angle - 1e-9 {
                 small_angles.push(p);
             }
         }
         let bg_hint = (0..points.len() as u32).collect();
-        Ok((field, Pslg { points, edges, neighbors, bg: bg_hint, shell, sharp, small_angles }))
+        Ok((
+            field,
+            Pslg {
+                points,
+                edges,
+                neighbors,
+                bg: bg_hint,
+                shell,
+                sharp,
+                small_angles,
+            },
+        ))
     }
 
     /// The size at `p`, and a vertex hint for the next nearby query.
@@ -297,7 +341,10 @@ impl SizeField {
                 let la = (a.position().x - p[0]).hypot(a.position().y - p[1]);
                 let lb = (b.position().x - p[0]).hypot(b.position().y - p[1]);
                 let t = if la + lb > 0.0 { la / (la + lb) } else { 0.5 };
-                (a.data().h * (1.0 - t) + b.data().h * t, a.fix().index() as u32)
+                (
+                    a.data().h * (1.0 - t) + b.data().h * t,
+                    a.fix().index() as u32,
+                )
             }
             PositionInTriangulation::OnVertex(v) => (self.bg.vertex(v).data().h, v.index() as u32),
             PositionInTriangulation::OutsideOfConvexHull(e) => {
@@ -312,20 +359,31 @@ impl SizeField {
     /// The region label at `p` (meant for points well inside a triangle of
     /// the input arrangement), and a vertex hint.
     pub(crate) fn label_at(&self, p: Point, hint: FixedVertexHandle) -> (u32, u32) {
-        let hint = if hint.index() < self.bg.num_vertices() { hint } else { FixedVertexHandle::from_index(0) };
+        let hint = if hint.index() < self.bg.num_vertices() {
+            hint
+        } else {
+            FixedVertexHandle::from_index(0)
+        };
         match self.bg.locate_with_hint(p2(p), hint) {
-            PositionInTriangulation::OnFace(f) => {
-                (self.face_label[f.index()], self.bg.face(f).vertices()[0].fix().index() as u32)
-            }
+            PositionInTriangulation::OnFace(f) => (
+                self.face_label[f.index()],
+                self.bg.face(f).vertices()[0].fix().index() as u32,
+            ),
             PositionInTriangulation::OnEdge(e) => {
                 let e = self.bg.directed_edge(e);
                 let f = e.face().as_inner().or(e.rev().face().as_inner());
-                (f.map_or(OUTSIDE, |f| self.face_label[f.fix().index()]), e.from().fix().index() as u32)
+                (
+                    f.map_or(OUTSIDE, |f| self.face_label[f.fix().index()]),
+                    e.from().fix().index() as u32,
+                )
             }
             PositionInTriangulation::OnVertex(v) => {
                 let vh = self.bg.vertex(v);
                 let f = vh.out_edges().find_map(|e| e.face().as_inner());
-                (f.map_or(OUTSIDE, |f| self.face_label[f.fix().index()]), v.index() as u32)
+                (
+                    f.map_or(OUTSIDE, |f| self.face_label[f.fix().index()]),
+                    v.index() as u32,
+                )
             }
             _ => (OUTSIDE, hint.index() as u32),
         }
@@ -353,12 +411,19 @@ impl SizeField {
 
 /// ∫ 1/h² over a triangle with linear h, by subdivision where h varies.
 fn integrate_inverse_square(p: [Point; 3], h: [f64; 3], depth: u32) -> f64 {
-    let area = 0.5 * ((p[1][0] - p[0][0]) * (p[2][1] - p[0][1]) - (p[1][1] - p[0][1]) * (p[2][0] - p[0][0])).abs();
+    let area = 0.5
+        * ((p[1][0] - p[0][0]) * (p[2][1] - p[0][1]) - (p[1][1] - p[0][1]) * (p[2][0] - p[0][0]))
+            .abs();
     let (lo, hi) = (h[0].min(h[1]).min(h[2]), h[0].max(h[1]).max(h[2]));
     if hi <= 1.5 * lo || depth >= 12 {
         return area / (h[0] * h[1] * h[2]).powf(2.0 / 3.0);
     }
-    let m = |i: usize, j: usize| ([0.5 * (p[i][0] + p[j][0]), 0.5 * (p[i][1] + p[j][1])], 0.5 * (h[i] + h[j]));
+    let m = |i: usize, j: usize| {
+        (
+            [0.5 * (p[i][0] + p[j][0]), 0.5 * (p[i][1] + p[j][1])],
+            0.5 * (h[i] + h[j]),
+        )
+    };
     let (m01, h01) = m(0, 1);
     let (m12, h12) = m(1, 2);
     let (m20, h20) = m(2, 0);
@@ -403,7 +468,10 @@ where
             members.push(f);
             let fh = cdt.face(f);
             if !touches_hull {
-                touches_hull = fh.adjacent_edges().iter().any(|e| !e.is_constraint_edge() && e.rev().face().is_outer());
+                touches_hull = fh
+                    .adjacent_edges()
+                    .iter()
+                    .any(|e| !e.is_constraint_edge() && e.rev().face().is_outer());
             }
             // A few thousand candidates give a face far enough from the
             // component's edges.
@@ -426,7 +494,9 @@ where
                 ((a.x - b.x).powi(2) + (a.y - b.y).powi(2)).sqrt()
             });
             let per = l[0] + l[1] + l[2];
-            let area2 = ((ps[1].x - ps[0].x) * (ps[2].y - ps[0].y) - (ps[1].y - ps[0].y) * (ps[2].x - ps[0].x)).abs();
+            let area2 = ((ps[1].x - ps[0].x) * (ps[2].y - ps[0].y)
+                - (ps[1].y - ps[0].y) * (ps[2].x - ps[0].x))
+                .abs();
             let inradius = if per > 0.0 { area2 / per } else { 0.0 };
             if inradius > best.0 {
                 // Incentre: weights are the opposite edge lengths.
@@ -449,7 +519,11 @@ where
                 }
             }
         }
-        let region = if touches_hull { crate::domain::OUTSIDE } else { classify(best.1) };
+        let region = if touches_hull {
+            crate::domain::OUTSIDE
+        } else {
+            classify(best.1)
+        };
         for f in &members {
             label[f.index()] = region;
         }

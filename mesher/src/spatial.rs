@@ -37,7 +37,14 @@ impl SegmentGrid {
         let nx = ((w / cell).ceil() as usize).clamp(1, 4096);
         let ny = ((h / cell).ceil() as usize).clamp(1, 4096);
         let cell = (w / nx as f64).max(h / ny as f64);
-        let mut grid = SegmentGrid { lo, cell, nx, ny, starts: vec![0; nx * ny + 1], items: Vec::new() };
+        let mut grid = SegmentGrid {
+            lo,
+            cell,
+            nx,
+            ny,
+            starts: vec![0; nx * ny + 1],
+            items: Vec::new(),
+        };
         // Two passes: count, then fill (compressed rows).
         for pass in 0..2 {
             let mut fill = grid.starts.clone();
@@ -77,7 +84,10 @@ impl SegmentGrid {
                 (c as usize).min(n - 1)
             }
         };
-        ([f(lo[0], 0, self.nx), f(lo[1], 1, self.ny)], [f(hi[0], 0, self.nx), f(hi[1], 1, self.ny)])
+        (
+            [f(lo[0], 0, self.nx), f(lo[1], 1, self.ny)],
+            [f(hi[0], 0, self.nx), f(hi[1], 1, self.ny)],
+        )
     }
 
     /// The grid's cell size.
@@ -115,7 +125,11 @@ pub(crate) fn orient(a: Point, b: Point, c: Point) -> f64 {
 pub(crate) fn point_segment_distance(p: Point, a: Point, b: Point) -> (f64, f64) {
     let d = [b[0] - a[0], b[1] - a[1]];
     let len2 = d[0] * d[0] + d[1] * d[1];
-    let t = if len2 > 0.0 { (((p[0] - a[0]) * d[0] + (p[1] - a[1]) * d[1]) / len2).clamp(0.0, 1.0) } else { 0.0 };
+    let t = if len2 > 0.0 {
+        (((p[0] - a[0]) * d[0] + (p[1] - a[1]) * d[1]) / len2).clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
     let q = [a[0] + t * d[0], a[1] + t * d[1]];
     (((p[0] - q[0]).powi(2) + (p[1] - q[1]).powi(2)).sqrt(), t)
 }
@@ -129,7 +143,11 @@ pub(crate) fn segments_touch(p1: Point, p2: Point, q1: Point, q2: Point) -> Opti
     let o4 = orient(q1, q2, p2);
     if o1 == 0.0 && o2 == 0.0 {
         // Collinear: overlap of the projections on the longer axis.
-        let k = if (p2[0] - p1[0]).abs() >= (p2[1] - p1[1]).abs() { 0 } else { 1 };
+        let k = if (p2[0] - p1[0]).abs() >= (p2[1] - p1[1]).abs() {
+            0
+        } else {
+            1
+        };
         let (a0, a1) = (p1[k].min(p2[k]), p1[k].max(p2[k]));
         let (b0, b1) = (q1[k].min(q2[k]), q1[k].max(q2[k]));
         if a0 <= b1 && b0 <= a1 {
@@ -142,9 +160,17 @@ pub(crate) fn segments_touch(p1: Point, p2: Point, q1: Point, q2: Point) -> Opti
         }
         return None;
     }
-    if (o1 > 0.0 && o2 > 0.0) || (o1 < 0.0 && o2 < 0.0) || (o3 > 0.0 && o4 > 0.0) || (o3 < 0.0 && o4 < 0.0) {
+    if (o1 > 0.0 && o2 > 0.0)
+        || (o1 < 0.0 && o2 < 0.0)
+        || (o3 > 0.0 && o4 > 0.0)
+        || (o3 < 0.0 && o4 < 0.0)
+    {
         return None;
     }
-    let t = if (o1 - o2) != 0.0 { o1 / (o1 - o2) } else { 0.0 };
+    let t = if (o1 - o2) != 0.0 {
+        o1 / (o1 - o2)
+    } else {
+        0.0
+    };
     Some([q1[0] + t * (q2[0] - q1[0]), q1[1] + t * (q2[1] - q1[1])])
 }

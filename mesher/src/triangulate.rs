@@ -69,7 +69,11 @@ impl MeshInput {
 }
 
 fn parameter(name: &'static str, value: f64, reason: &'static str) -> MeshError {
-    MeshError::Parameter { name, value, reason }
+    MeshError::Parameter {
+        name,
+        value,
+        reason,
+    }
 }
 
 fn check_size(name: &'static str, v: f64) -> Result<(), MeshError> {
@@ -82,10 +86,18 @@ fn check_size(name: &'static str, v: f64) -> Result<(), MeshError> {
 
 fn check_quality(growth: f64, min_angle_deg: f64) -> Result<(), MeshError> {
     if !(growth.is_finite() && growth > 1.0) {
-        return Err(parameter("growth", growth, "must be a finite ratio above 1"));
+        return Err(parameter(
+            "growth",
+            growth,
+            "must be a finite ratio above 1",
+        ));
     }
     if !(min_angle_deg > 0.0 && min_angle_deg <= 34.0) {
-        return Err(parameter("min_angle_deg", min_angle_deg, "must be in (0, 34] degrees"));
+        return Err(parameter(
+            "min_angle_deg",
+            min_angle_deg,
+            "must be in (0, 34] degrees",
+        ));
     }
     Ok(())
 }
@@ -107,14 +119,20 @@ pub fn mesh(input: &MeshInput) -> Result<Mesh, MeshError> {
     }
     check_quality(input.growth, input.min_angle_deg)?;
     if !(input.chord_fraction > 0.0 && input.chord_fraction <= 0.5) {
-        return Err(parameter("chord_fraction", input.chord_fraction, "must be in (0, 0.5]"));
+        return Err(parameter(
+            "chord_fraction",
+            input.chord_fraction,
+            "must be in (0, 0.5]",
+        ));
     }
     if input.max_triangles == 0 {
         return Err(parameter("max_triangles", 0.0, "must be at least 1"));
     }
     input.outer.validate()?;
     for (i, s) in input.shapes.iter().enumerate() {
-        s.outline.validate().map_err(|source| MeshError::ShapeGeometry { shape: i, source })?;
+        s.outline
+            .validate()
+            .map_err(|source| MeshError::ShapeGeometry { shape: i, source })?;
     }
     // A cheap guard before any allocation that grows with the answer:
     // equilateral triangles of the largest allowed size already need this.
@@ -128,15 +146,32 @@ pub fn mesh(input: &MeshInput) -> Result<Mesh, MeshError> {
     }
     let rough = rough.max(boundary_points);
     if !(rough <= limit) {
-        return Err(MeshError::TooLarge { estimated_triangles: rough, limit });
+        return Err(MeshError::TooLarge {
+            estimated_triangles: rough,
+            limit,
+        });
     }
-    let shapes: Vec<(&Outline, f64)> = input.shapes.iter().map(|s| (&s.outline, s.mesh_size)).collect();
-    let domain = Domain::from_outlines(&input.outer, &shapes, input.max_size, input.growth, input.chord_fraction);
+    let shapes: Vec<(&Outline, f64)> = input
+        .shapes
+        .iter()
+        .map(|s| (&s.outline, s.mesh_size))
+        .collect();
+    let domain = Domain::from_outlines(
+        &input.outer,
+        &shapes,
+        input.max_size,
+        input.growth,
+        input.chord_fraction,
+    );
     run(domain, input.min_angle_deg, input.max_triangles, start)
 }
 
 fn perimeter(o: &Outline) -> f64 {
-    o.loops.iter().flat_map(|l| &l.segments).map(|s| s.length()).sum()
+    o.loops
+        .iter()
+        .flat_map(|l| &l.segments)
+        .map(|s| s.length())
+        .sum()
 }
 
 /// Mesh a disc whose boundary nodes are exactly `rim_points` (on the circle
@@ -182,18 +217,32 @@ pub fn mesh_disc_with_fixed_rim(
     }
     let outline = Outline::polygon(rim_points)?;
     if outline.loops[0].signed_area() <= 0.0 {
-        return Err(GeometryError::BadRadius("rim points must run counter-clockwise".into()).into());
+        return Err(
+            GeometryError::BadRadius("rim points must run counter-clockwise".into()).into(),
+        );
     }
     let chord = |i: usize| {
         let (a, b) = (rim_points[i % n], rim_points[(i + 1) % n]);
         (a[0] - b[0]).hypot(a[1] - b[1])
     };
-    let caps: Vec<f64> = (0..n).map(|i| 0.5 * (chord(i) + chord(i + n - 1))).collect();
+    let caps: Vec<f64> = (0..n)
+        .map(|i| 0.5 * (chord(i) + chord(i + n - 1)))
+        .collect();
     let segs = (0..n as u32)
-        .map(|i| SegInfo { local: i, prev: (i + n as u32 - 1) % n as u32, next: (i + 1) % n as u32 })
+        .map(|i| SegInfo {
+            local: i,
+            prev: (i + n as u32 - 1) % n as u32,
+            next: (i + 1) % n as u32,
+        })
         .collect();
     let domain = Domain {
-        loops: vec![PolyLoop::new(rim_points.to_vec(), (0..n as u32).collect(), vec![0.0; n], OUTER_OWNER, max_size)],
+        loops: vec![PolyLoop::new(
+            rim_points.to_vec(),
+            (0..n as u32).collect(),
+            vec![0.0; n],
+            OUTER_OWNER,
+            max_size,
+        )],
         segs,
         curves: vec![None; n],
         shape_sizes: Vec::new(),
@@ -207,7 +256,10 @@ pub fn mesh_disc_with_fixed_rim(
     let smallest = (0..n).map(chord).fold(f64::INFINITY, f64::min);
     let rough = area * 2.31 / (max_size * max_size);
     if !(rough <= 5.0e7) || !(smallest > 0.0) {
-        return Err(MeshError::TooLarge { estimated_triangles: rough, limit: 5.0e7 });
+        return Err(MeshError::TooLarge {
+            estimated_triangles: rough,
+            limit: 5.0e7,
+        });
     }
     run(domain, min_angle_deg, 50_000_000, start)
 }
@@ -218,7 +270,12 @@ fn split_points(field: &SizeField, a: Point, b: Point, hint: u32) -> Vec<Point> 
     if !(len > 0.0) {
         return Vec::new();
     }
-    let at = |s: f64| [a[0] + (b[0] - a[0]) * s / len, a[1] + (b[1] - a[1]) * s / len];
+    let at = |s: f64| {
+        [
+            a[0] + (b[0] - a[0]) * s / len,
+            a[1] + (b[1] - a[1]) * s / len,
+        ]
+    };
     // March by the local size, then spread a whole number of pieces evenly
     // over the marched step positions.
     let mut marks = vec![0.0f64];
@@ -247,35 +304,45 @@ fn split_points(field: &SizeField, a: Point, b: Point, hint: u32) -> Vec<Point> 
         .collect()
 }
 
-fn run(mut domain: Domain, min_angle_deg: f64, max_triangles: usize, start: Instant) -> Result<Mesh, MeshError> {
+fn run(
+    mut domain: Domain,
+    min_angle_deg: f64,
+    max_triangles: usize,
+    start: Instant,
+) -> Result<Mesh, MeshError> {
     let caps = domain.refine_for_features();
-    if std::env::var_os("FLUXWRIGHT_MESH_TIMING").is_some() {
-        eprintln!("features {:.3}s", start.elapsed().as_secs_f64());
-    }
     let domain = &domain;
     let (field, pslg) = SizeField::build(domain, &caps, min_angle_deg)?;
     let estimate = field.estimate_triangles();
     let limit = max_triangles as f64;
     if !(estimate <= limit) {
-        return Err(MeshError::TooLarge { estimated_triangles: estimate, limit });
+        return Err(MeshError::TooLarge {
+            estimated_triangles: estimate,
+            limit,
+        });
     }
-    let dbg = std::env::var_os("FLUXWRIGHT_MESH_TIMING").is_some();
-    if dbg { eprintln!("field {:.3}s", start.elapsed().as_secs_f64()); }
     let (mut cdt, scale) = build_cdt(domain, &field, &pslg)?;
-    if dbg { eprintln!("cdt {:.3}s ({} vertices)", start.elapsed().as_secs_f64(), cdt.num_vertices()); }
+
     let max_vertices = cdt.num_vertices() + max_triangles.max(16);
-    let mut refiner =
-        Refiner::new(&mut cdt, &field, &pslg, min_angle_deg, 1e-10 * scale, domain.fixed_boundary, max_vertices);
+    let mut refiner = Refiner::new(
+        &mut cdt,
+        &field,
+        &pslg,
+        min_angle_deg,
+        1e-10 * scale,
+        domain.fixed_boundary,
+        max_vertices,
+    );
     refiner.seed();
     let outcome = refiner.run();
     if outcome.broken {
         return Err(MeshError::Triangulation(
-            "a constraint edge could not be restored after splitting (near-degenerate input)".into(),
+            "a constraint edge could not be restored after splitting (near-degenerate input)"
+                .into(),
         ));
     }
-    if dbg { eprintln!("refine {:.3}s", start.elapsed().as_secs_f64()); }
     let mut mesh = extract(domain, &cdt)?;
-    if dbg { eprintln!("extract {:.3}s", start.elapsed().as_secs_f64()); }
+
     mesh.report = RefinementReport {
         complete: outcome.met && pslg.small_angles.is_empty() && outcome.skipped_small_angle == 0,
         small_input_angles: pslg.small_angles.clone(),
@@ -315,7 +382,13 @@ fn build_cdt(domain: &Domain, field: &SizeField, pslg: &Pslg) -> Result<(MeshCdt
                 Some(h) => h,
                 None => {
                     let (size, bg) = field.size_at(pslg.points[e], pslg.bg[e]);
-                    let v = MeshVertex { pos: Point2::new(pslg.points[e][0], pslg.points[e][1]), h: size, bg, pv: end, ends: [NONE; 2] };
+                    let v = MeshVertex {
+                        pos: Point2::new(pslg.points[e][0], pslg.points[e][1]),
+                        h: size,
+                        bg,
+                        pv: end,
+                        ends: [NONE; 2],
+                    };
                     let h = insert(&mut cdt, v)?;
                     handle_of[e] = Some(h);
                     h
@@ -327,7 +400,13 @@ fn build_cdt(domain: &Domain, field: &SizeField, pslg: &Pslg) -> Result<(MeshCdt
                     let (pa, pb) = (pslg.points[a as usize], pslg.points[b as usize]);
                     for p in split_points(field, pa, pb, pslg.bg[a as usize]) {
                         let (size, bg) = field.size_at(p, pslg.bg[a as usize]);
-                        let v = MeshVertex { pos: Point2::new(p[0], p[1]), h: size, bg, pv: NONE, ends: [a, b] };
+                        let v = MeshVertex {
+                            pos: Point2::new(p[0], p[1]),
+                            h: size,
+                            bg,
+                            pv: NONE,
+                            ends: [a, b],
+                        };
                         chain.push(insert(&mut cdt, v)?);
                     }
                 }
@@ -405,12 +484,16 @@ fn extract(domain: &Domain, cdt: &MeshCdt) -> Result<Mesh, MeshError> {
             let mid = [0.5 * (a.x + b.x), 0.5 * (a.y + b.y)];
             let mut best = (f64::INFINITY, u32::MAX);
             let pad = 1e-9 * (a.x - b.x).hypot(a.y - b.y);
-            grid.query([mid[0] - pad, mid[1] - pad], [mid[0] + pad, mid[1] + pad], |j| {
-                let d = point_segment_distance(mid, outer_edges[j][0], outer_edges[j][1]).0;
-                if d < best.0 {
-                    best = (d, outer_seg[j]);
-                }
-            });
+            grid.query(
+                [mid[0] - pad, mid[1] - pad],
+                [mid[0] + pad, mid[1] + pad],
+                |j| {
+                    let d = point_segment_distance(mid, outer_edges[j][0], outer_edges[j][1]).0;
+                    if d < best.0 {
+                        best = (d, outer_seg[j]);
+                    }
+                },
+            );
             if best.1 == u32::MAX {
                 return Err(MeshError::Invariant(format!(
                     "mesh edge at ({:.6}, {:.6}) bounds the domain but lies on no outer segment",
@@ -421,7 +504,10 @@ fn extract(domain: &Domain, cdt: &MeshCdt) -> Result<Mesh, MeshError> {
             let ib = e.to().fix().index();
             // `to` may not be numbered yet only if it is not in this face,
             // which cannot happen: both ends are corners of `f`.
-            mesh.boundary.push(BoundaryEdge { nodes: [ia, node_of[ib]], segment: best.1 });
+            mesh.boundary.push(BoundaryEdge {
+                nodes: [ia, node_of[ib]],
+                segment: best.1,
+            });
         }
     }
     Ok(mesh)

@@ -13,7 +13,11 @@ pub(crate) fn validate_outline(outline: &Outline) -> Result<(), GeometryError> {
         return Err(GeometryError::NoArea);
     }
     let (lo, hi) = outline.bounding_box();
-    let scale = (hi[0] - lo[0]).abs().max((hi[1] - lo[1]).abs()).max(lo[0].abs()).max(lo[1].abs());
+    let scale = (hi[0] - lo[0])
+        .abs()
+        .max((hi[1] - lo[1]).abs())
+        .max(lo[0].abs())
+        .max(lo[1].abs());
     for l in &outline.loops {
         for s in &l.segments {
             match *s {
@@ -25,9 +29,15 @@ pub(crate) fn validate_outline(outline: &Outline) -> Result<(), GeometryError> {
                         return Err(GeometryError::SelfIntersection(from[0], from[1]));
                     }
                 }
-                Segment::Arc { center, radius, start, sweep } => {
-                    if !(center[0].is_finite() && center[1].is_finite() && radius.is_finite())
-                        || !(start.is_finite() && sweep.is_finite())
+                Segment::Arc {
+                    center,
+                    radius,
+                    start,
+                    sweep,
+                } => {
+                    if ![center[0], center[1], radius, start, sweep]
+                        .iter()
+                        .all(|v| v.is_finite())
                     {
                         return Err(GeometryError::NotFinite);
                     }
@@ -80,7 +90,11 @@ pub(crate) fn validate_outline(outline: &Outline) -> Result<(), GeometryError> {
             if adjacent {
                 // Consecutive edges share one corner; they must not fold back
                 // onto each other.
-                let (shared, a, b) = if kj == (ki + 1) % n { (e[1], e[0], f[1]) } else { (e[0], e[1], f[0]) };
+                let (shared, a, b) = if kj == (ki + 1) % n {
+                    (e[1], e[0], f[1])
+                } else {
+                    (e[0], e[1], f[0])
+                };
                 let u = [a[0] - shared[0], a[1] - shared[1]];
                 let v = [b[0] - shared[0], b[1] - shared[1]];
                 let cross = u[0] * v[1] - u[1] * v[0];

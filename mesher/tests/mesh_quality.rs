@@ -4,7 +4,9 @@
 
 use std::f64::consts::PI;
 
-use fluxwright_mesher::{mesh, mesh_disc_with_fixed_rim, Mesh, MeshError, MeshInput, Outline, Point, Segment, ShapeInput};
+use fluxwright_mesher::{
+    mesh, mesh_disc_with_fixed_rim, Mesh, MeshError, MeshInput, Outline, Point, Segment, ShapeInput,
+};
 
 const TARGET: f64 = 25.0;
 
@@ -20,12 +22,17 @@ fn input(outer: Outline, max_size: f64, shapes: Vec<ShapeInput>) -> MeshInput {
 }
 
 fn min_angle(m: &Mesh, t: usize) -> f64 {
-    m.triangle_angles(t).into_iter().fold(f64::INFINITY, f64::min).to_degrees()
+    m.triangle_angles(t)
+        .into_iter()
+        .fold(f64::INFINITY, f64::min)
+        .to_degrees()
 }
 
 fn longest_edge(m: &Mesh, t: usize) -> f64 {
     let p = m.triangles[t].map(|i| m.nodes[i as usize]);
-    (0..3).map(|k| dist(p[k], p[(k + 1) % 3])).fold(0.0, f64::max)
+    (0..3)
+        .map(|k| dist(p[k], p[(k + 1) % 3]))
+        .fold(0.0, f64::max)
 }
 
 fn dist(a: Point, b: Point) -> f64 {
@@ -34,11 +41,17 @@ fn dist(a: Point, b: Point) -> f64 {
 
 fn centroid(m: &Mesh, t: usize) -> Point {
     let p = m.triangles[t].map(|i| m.nodes[i as usize]);
-    [(p[0][0] + p[1][0] + p[2][0]) / 3.0, (p[0][1] + p[1][1] + p[2][1]) / 3.0]
+    [
+        (p[0][0] + p[1][0] + p[2][0]) / 3.0,
+        (p[0][1] + p[1][1] + p[2][1]) / 3.0,
+    ]
 }
 
 fn area_of(m: &Mesh, region: u32) -> f64 {
-    m.region_areas().into_iter().find(|r| r.0 == region).map_or(0.0, |r| r.1)
+    m.region_areas()
+        .into_iter()
+        .find(|r| r.0 == region)
+        .map_or(0.0, |r| r.1)
 }
 
 /// Upper bound on the area lost or gained between arcs and their chords:
@@ -46,7 +59,9 @@ fn area_of(m: &Mesh, region: u32) -> f64 {
 /// (2/3)·s·ℓ (circular segment ≈ parabolic segment, Archimedes), and the
 /// sagitta is at most `chord_fraction × r`; we allow s·ℓ.
 fn chord_bound(chord_fraction: f64, arcs: &[(f64, f64)]) -> f64 {
-    arcs.iter().map(|&(r, sweep)| chord_fraction * r * r * sweep.abs()).sum()
+    arcs.iter()
+        .map(|&(r, sweep)| chord_fraction * r * r * sweep.abs())
+        .sum()
 }
 
 /// Every line and arc of `outline` is a union of mesh edges: the mesh nodes
@@ -56,7 +71,11 @@ fn assert_input_edges_present(m: &Mesh, outline: &Outline, chord_fraction: f64) 
     let topo = m.edge_topology();
     let mut edges: Vec<[u32; 2]> = topo.edges.clone();
     edges.sort_unstable();
-    let has_edge = |a: u32, b: u32| edges.binary_search(&if a < b { [a, b] } else { [b, a] }).is_ok();
+    let has_edge = |a: u32, b: u32| {
+        edges
+            .binary_search(&if a < b { [a, b] } else { [b, a] })
+            .is_ok()
+    };
     let (lo, hi) = outline.bounding_box();
     let tol = 1e-9 * (hi[0] - lo[0]).max(hi[1] - lo[1]);
     for s in outline.loops.iter().flat_map(|l| &l.segments) {
@@ -73,7 +92,12 @@ fn assert_input_edges_present(m: &Mesh, outline: &Outline, chord_fraction: f64) 
                         on.push((t, i as u32));
                     }
                 }
-                Segment::Arc { center, radius, start, sweep } => {
+                Segment::Arc {
+                    center,
+                    radius,
+                    start,
+                    sweep,
+                } => {
                     let r = dist(p, center);
                     if r > radius + tol || r < radius * (1.0 - chord_fraction) - tol {
                         continue;
@@ -96,7 +120,10 @@ fn assert_input_edges_present(m: &Mesh, outline: &Outline, chord_fraction: f64) 
         assert!(on.len() >= 2, "segment {s:?} has {} mesh nodes", on.len());
         let full_circle = matches!(*s, Segment::Arc { sweep, .. } if sweep.abs() >= std::f64::consts::TAU - 1e-12);
         if !full_circle {
-            assert!(dist(m.nodes[on[0].1 as usize], start) <= tol, "segment {s:?} does not start at a mesh node");
+            assert!(
+                dist(m.nodes[on[0].1 as usize], start) <= tol,
+                "segment {s:?} does not start at a mesh node"
+            );
             assert!(
                 dist(m.nodes[on[on.len() - 1].1 as usize], end) <= tol,
                 "segment {s:?} does not end at a mesh node"
@@ -116,7 +143,8 @@ fn assert_input_edges_present(m: &Mesh, outline: &Outline, chord_fraction: f64) 
                 Segment::Line { .. } => false,
             })
             .collect();
-        let mut adjacency: std::collections::HashMap<u32, Vec<u32>> = std::collections::HashMap::new();
+        let mut adjacency: std::collections::HashMap<u32, Vec<u32>> =
+            std::collections::HashMap::new();
         for &[a, b] in &edges {
             if in_band[a as usize] && in_band[b as usize] {
                 adjacency.entry(a).or_default().push(b);
@@ -135,7 +163,8 @@ fn assert_input_edges_present(m: &Mesh, outline: &Outline, chord_fraction: f64) 
                     if y == b {
                         return true;
                     }
-                    if !seen.contains(&y) && dist(m.nodes[y as usize], m.nodes[a as usize]) <= limit {
+                    if !seen.contains(&y) && dist(m.nodes[y as usize], m.nodes[a as usize]) <= limit
+                    {
                         seen.push(y);
                         stack.push(y);
                     }
@@ -146,21 +175,33 @@ fn assert_input_edges_present(m: &Mesh, outline: &Outline, chord_fraction: f64) 
         let is_arc = matches!(*s, Segment::Arc { .. });
         if is_arc {
             // Only nodes on the circle itself start and end chords.
-            on.retain(|&(_, i)| (dist(m.nodes[i as usize], match *s {
-                Segment::Arc { center, .. } => center,
-                Segment::Line { from, .. } => from,
-            }) - match *s {
-                Segment::Arc { radius, .. } => radius,
-                Segment::Line { .. } => 0.0,
-            })
-            .abs()
-                <= tol);
+            on.retain(|&(_, i)| {
+                (dist(
+                    m.nodes[i as usize],
+                    match *s {
+                        Segment::Arc { center, .. } => center,
+                        Segment::Line { from, .. } => from,
+                    },
+                ) - match *s {
+                    Segment::Arc { radius, .. } => radius,
+                    Segment::Line { .. } => 0.0,
+                })
+                .abs()
+                    <= tol
+            });
         }
         for w in on.windows(2) {
-            assert!(joined(w[0].1, w[1].1), "no mesh edge between consecutive nodes on {s:?} at t = {}", w[0].0);
+            assert!(
+                joined(w[0].1, w[1].1),
+                "no mesh edge between consecutive nodes on {s:?} at t = {}",
+                w[0].0
+            );
         }
         if full_circle {
-            assert!(joined(on[on.len() - 1].1, on[0].1), "circle {s:?} not closed by a mesh edge");
+            assert!(
+                joined(on[on.len() - 1].1, on[0].1),
+                "circle {s:?} not closed by a mesh edge"
+            );
         }
     }
 }
@@ -174,8 +215,16 @@ fn assert_angles_met_away_from(m: &Mesh, radius: f64) {
             continue;
         }
         let c = centroid(m, t);
-        let near = m.report.small_input_angles.iter().map(|&p| dist(p, c)).fold(f64::INFINITY, f64::min);
-        assert!(near <= radius, "triangle {t} at {c:?} has {a:.2}° and is {near:.3} from any small input angle");
+        let near = m
+            .report
+            .small_input_angles
+            .iter()
+            .map(|&p| dist(p, c))
+            .fold(f64::INFINITY, f64::min);
+        assert!(
+            near <= radius,
+            "triangle {t} at {c:?} has {a:.2}° and is {near:.3} from any small input angle"
+        );
     }
 }
 
@@ -190,7 +239,11 @@ fn layered_areas_match_exact_geometry() {
     let inp = input(
         outer.clone(),
         8.0,
-        vec![shape(rect.clone(), 2.0), shape(circle.clone(), 0.7), shape(ring.clone(), 1.0)],
+        vec![
+            shape(rect.clone(), 2.0),
+            shape(circle.clone(), 0.7),
+            shape(ring.clone(), 1.0),
+        ],
     );
     let m = mesh(&inp).unwrap();
     m.check().unwrap();
@@ -204,9 +257,21 @@ fn layered_areas_match_exact_geometry() {
     let exact_circle = PI * 25.0;
     let exact_ring = PI * (81.0 - 36.0);
     let exact_outer = 10_000.0 - 800.0 - 0.5 * PI * 25.0 - exact_ring;
-    assert!((area_of(&m, 0) - exact_rect).abs() <= half_circle, "rectangle {}", area_of(&m, 0));
-    assert!((area_of(&m, 1) - exact_circle).abs() <= full_circle, "circle {}", area_of(&m, 1));
-    assert!((area_of(&m, 2) - exact_ring).abs() <= ring_bound, "ring {}", area_of(&m, 2));
+    assert!(
+        (area_of(&m, 0) - exact_rect).abs() <= half_circle,
+        "rectangle {}",
+        area_of(&m, 0)
+    );
+    assert!(
+        (area_of(&m, 1) - exact_circle).abs() <= full_circle,
+        "circle {}",
+        area_of(&m, 1)
+    );
+    assert!(
+        (area_of(&m, 2) - exact_ring).abs() <= ring_bound,
+        "ring {}",
+        area_of(&m, 2)
+    );
     assert!(
         (area_of(&m, Mesh::OUTER_REGION) - exact_outer).abs() <= half_circle + ring_bound,
         "outer {}",
@@ -226,7 +291,10 @@ fn layered_areas_match_exact_geometry() {
     let sizes = [2.0, 0.7, 1.0];
     for t in 0..m.triangles.len() {
         let limit = sizes.get(m.regions[t] as usize).copied().unwrap_or(8.0);
-        assert!(longest_edge(&m, t) <= limit * (1.0 + 1e-9), "triangle {t} too long for its region");
+        assert!(
+            longest_edge(&m, t) <= limit * (1.0 + 1e-9),
+            "triangle {t} too long for its region"
+        );
     }
 }
 
@@ -238,7 +306,11 @@ fn thin_gap_between_blocks() {
     let b = Outline::rectangle([-10.0, 0.1], [10.0, 10.1]).unwrap();
     let m = mesh(&input(outer, 5.0, vec![shape(a, 2.0), shape(b, 2.0)])).unwrap();
     m.check().unwrap();
-    assert!(m.quality().min_angle_deg >= TARGET - 1e-9, "min angle {}", m.quality().min_angle_deg);
+    assert!(
+        m.quality().min_angle_deg >= TARGET - 1e-9,
+        "min angle {}",
+        m.quality().min_angle_deg
+    );
     assert!(m.report.complete);
     // Gap triangles: at least two elements across 0.2 mm.
     let mut in_gap = 0;
@@ -246,7 +318,11 @@ fn thin_gap_between_blocks() {
         let c = centroid(&m, t);
         if c[0].abs() < 9.5 && c[1].abs() < 0.1 {
             assert_eq!(m.regions[t], Mesh::OUTER_REGION);
-            assert!(longest_edge(&m, t) <= 0.1 + 1e-12, "gap triangle at {c:?} is {}", longest_edge(&m, t));
+            assert!(
+                longest_edge(&m, t) <= 0.1 + 1e-12,
+                "gap triangle at {c:?} is {}",
+                longest_edge(&m, t)
+            );
             in_gap += 1;
         }
     }
@@ -263,12 +339,24 @@ fn thin_shell_annulus() {
     let inp = input(outer, 5.0, vec![shape(shell.clone(), 2.0)]);
     let m = mesh(&inp).unwrap();
     m.check().unwrap();
-    assert!(m.quality().min_angle_deg >= TARGET - 1e-9, "min angle {}", m.quality().min_angle_deg);
+    assert!(
+        m.quality().min_angle_deg >= TARGET - 1e-9,
+        "min angle {}",
+        m.quality().min_angle_deg
+    );
     // π(R² − r²) = π·(20.25² − 19.75²) = 20π.
     let bound = chord_bound(inp.chord_fraction, &[(20.25, 2.0 * PI), (19.75, 2.0 * PI)]);
-    assert!((area_of(&m, 0) - 20.0 * PI).abs() <= bound, "shell area {}", area_of(&m, 0));
+    assert!(
+        (area_of(&m, 0) - 20.0 * PI).abs() <= bound,
+        "shell area {}",
+        area_of(&m, 0)
+    );
     for t in (0..m.triangles.len()).filter(|&t| m.regions[t] == 0) {
-        assert!(longest_edge(&m, t) <= 0.25 + 1e-9, "shell element too large: {}", longest_edge(&m, t));
+        assert!(
+            longest_edge(&m, t) <= 0.25 + 1e-9,
+            "shell element too large: {}",
+            longest_edge(&m, t)
+        );
     }
     assert_input_edges_present(&m, &shell, inp.chord_fraction);
 }
@@ -276,12 +364,18 @@ fn thin_shell_annulus() {
 #[test]
 fn sharp_corner_is_reported_and_angles_met_elsewhere() {
     let (s, c) = 5f64.to_radians().sin_cos();
-    let wedge = Outline::polygon(&[[0.0, 0.0], [20.0 * c, -20.0 * s], [20.0 * c, 20.0 * s]]).unwrap();
+    let wedge =
+        Outline::polygon(&[[0.0, 0.0], [20.0 * c, -20.0 * s], [20.0 * c, 20.0 * s]]).unwrap();
     let outer = Outline::rectangle([-10.0, -10.0], [30.0, 10.0]).unwrap();
     let m = mesh(&input(outer, 3.0, vec![shape(wedge.clone(), 1.0)])).unwrap();
     m.check().unwrap();
     assert!(!m.report.complete);
-    assert_eq!(m.report.small_input_angles.len(), 1, "{:?}", m.report.small_input_angles);
+    assert_eq!(
+        m.report.small_input_angles.len(),
+        1,
+        "{:?}",
+        m.report.small_input_angles
+    );
     assert!(dist(m.report.small_input_angles[0], [0.0, 0.0]) < 1e-12);
     // Below-target triangles stay inside the wedge's first few elements
     // (rule of thumb for this test, no source: within 8 element sizes).
@@ -296,14 +390,22 @@ fn many_shapes() -> (Outline, Vec<ShapeInput>) {
     let mut shapes = Vec::new();
     for k in 0..6 {
         let a = k as f64 * 60.0;
-        let r = Outline::rectangle([-8.0, -3.0], [30.0, 3.0]).unwrap().rotated(a + 7.0, [0.0, 0.0]);
+        let r = Outline::rectangle([-8.0, -3.0], [30.0, 3.0])
+            .unwrap()
+            .rotated(a + 7.0, [0.0, 0.0]);
         shapes.push(shape(r, 1.5));
     }
     for k in 0..4 {
         let a = (k as f64 * 90.0 + 20.0).to_radians();
-        shapes.push(shape(Outline::circle([22.0 * a.cos(), 22.0 * a.sin()], 7.0).unwrap(), 1.0));
+        shapes.push(shape(
+            Outline::circle([22.0 * a.cos(), 22.0 * a.sin()], 7.0).unwrap(),
+            1.0,
+        ));
     }
-    shapes.push(shape(Outline::sector([0.0, 0.0], 36.0, 40.0, 10.0, 300.0).unwrap(), 1.0));
+    shapes.push(shape(
+        Outline::sector([0.0, 0.0], 36.0, 40.0, 10.0, 300.0).unwrap(),
+        1.0,
+    ));
     (outer, shapes)
 }
 
@@ -327,7 +429,10 @@ fn many_overlapping_shapes() {
     // Region of each triangle: the last shape containing its centroid.
     for t in (0..m.triangles.len()).step_by(7) {
         let c = centroid(&m, t);
-        let expect = (0..shapes.len()).rev().find(|&i| shapes[i].outline.contains(c)).map_or(Mesh::OUTER_REGION, |i| i as u32);
+        let expect = (0..shapes.len())
+            .rev()
+            .find(|&i| shapes[i].outline.contains(c))
+            .map_or(Mesh::OUTER_REGION, |i| i as u32);
         assert_eq!(m.regions[t], expect, "triangle at {c:?}");
     }
 }
@@ -343,16 +448,27 @@ fn size_field_grades_away_from_a_tiny_shape() {
     // A uniform mesh at 0.02 would need at least area / (√3/4 · h²)
     // equilateral triangles (geometry of the equilateral triangle).
     let uniform = 10_000.0 / (3f64.sqrt() / 4.0 * 0.02 * 0.02);
-    assert!((m.triangles.len() as f64) < 0.01 * uniform, "{} triangles vs uniform {uniform:.3e}", m.triangles.len());
+    assert!(
+        (m.triangles.len() as f64) < 0.01 * uniform,
+        "{} triangles vs uniform {uniform:.3e}",
+        m.triangles.len()
+    );
     assert!(m.quality().min_angle_deg >= TARGET - 1e-9);
     // Grading: the longest edge grows at most like 0.02 + (g − 1)·distance
     // from the dot, allowing 25 % for the linear interpolation of the
     // field (rule of thumb, no source).
     for t in 0..m.triangles.len() {
         // The mesh follows the field at its corners: use the farthest.
-        let d = m.triangles[t].iter().map(|&i| (dist(m.nodes[i as usize], [0.0, 0.0]) - 0.5).max(0.0)).fold(0.0, f64::max);
+        let d = m.triangles[t]
+            .iter()
+            .map(|&i| (dist(m.nodes[i as usize], [0.0, 0.0]) - 0.5).max(0.0))
+            .fold(0.0, f64::max);
         let limit = (0.02 + 1.25 * (inp.growth - 1.0) * d).min(10.0) + 1e-9;
-        assert!(longest_edge(&m, t) <= limit, "triangle at distance {d} has edge {}", longest_edge(&m, t));
+        assert!(
+            longest_edge(&m, t) <= limit,
+            "triangle at distance {d} has edge {}",
+            longest_edge(&m, t)
+        );
         if m.regions[t] == 0 {
             assert!(longest_edge(&m, t) <= 0.02 * (1.0 + 1e-9));
         }
@@ -378,11 +494,15 @@ fn boundary_edges_are_tagged_and_counter_clockwise() {
         let (a, b) = (m.nodes[e.nodes[0] as usize], m.nodes[e.nodes[1] as usize]);
         // The domain lies to the left: the edge runs counter-clockwise in
         // its triangle.
-        assert!(directed.binary_search(&e.nodes).is_ok(), "edge {e:?} not counter-clockwise in its triangle");
+        assert!(
+            directed.binary_search(&e.nodes).is_ok(),
+            "edge {e:?} not counter-clockwise in its triangle"
+        );
         let s = segments[e.segment as usize];
         let on = |p: Point| match s {
             Segment::Line { from, to } => {
-                let cross = (to[0] - from[0]) * (p[1] - from[1]) - (to[1] - from[1]) * (p[0] - from[0]);
+                let cross =
+                    (to[0] - from[0]) * (p[1] - from[1]) - (to[1] - from[1]) * (p[0] - from[0]);
                 cross.abs() / s.length() < 1e-9
             }
             // Nodes on an arc, or on its chords (within the sagitta).
@@ -401,14 +521,20 @@ fn boundary_edges_are_tagged_and_counter_clockwise() {
         match *s {
             Segment::Line { .. } => assert!((covered[k] - s.length()).abs() < 1e-9),
             Segment::Arc { radius, .. } => {
-                assert!(covered[k] <= s.length() + 1e-9 && covered[k] >= s.length() * (1.0 - 2.0 * inp.chord_fraction));
+                assert!(
+                    covered[k] <= s.length() + 1e-9
+                        && covered[k] >= s.length() * (1.0 - 2.0 * inp.chord_fraction)
+                );
                 assert!(radius > 0.0);
             }
         }
     }
     // Sector area ½θ(R² − r²) less the chord loss.
     let exact = 0.5 * (2.0 * PI / 3.0) * (100.0 - 4.0);
-    let bound = chord_bound(inp.chord_fraction, &[(10.0, 2.0 * PI / 3.0), (2.0, 2.0 * PI / 3.0)]);
+    let bound = chord_bound(
+        inp.chord_fraction,
+        &[(10.0, 2.0 * PI / 3.0), (2.0, 2.0 * PI / 3.0)],
+    );
     assert!((area_of(&m, Mesh::OUTER_REGION) - exact).abs() <= bound);
 }
 
@@ -432,13 +558,19 @@ fn fixed_rim_disc_keeps_its_nodes() {
         assert_eq!(m.nodes[e.nodes[1] as usize], rim[(i + 1) % n]);
     }
     // Area of the rim polygon by the shoelace formula.
-    let shoelace: f64 = (0..n).map(|i| {
-        let (a, b) = (rim[i], rim[(i + 1) % n]);
-        0.5 * (a[0] * b[1] - b[0] * a[1])
-    }).sum();
+    let shoelace: f64 = (0..n)
+        .map(|i| {
+            let (a, b) = (rim[i], rim[(i + 1) % n]);
+            0.5 * (a[0] * b[1] - b[0] * a[1])
+        })
+        .sum();
     let total: f64 = m.region_areas().iter().map(|x| x.1).sum();
     assert!((total - shoelace).abs() < 1e-9);
-    assert!(m.quality().min_angle_deg >= 20.0, "min angle {}", m.quality().min_angle_deg);
+    assert!(
+        m.quality().min_angle_deg >= 20.0,
+        "min angle {}",
+        m.quality().min_angle_deg
+    );
     assert!(m.quality().edge_length_range[1] <= 0.8 + 1e-9);
 }
 
@@ -447,21 +579,46 @@ fn bad_parameters_and_huge_inputs_are_refused() {
     let outer = Outline::rectangle([0.0, 0.0], [1.0, 1.0]).unwrap();
     let mut inp = MeshInput::new(outer.clone(), 0.1);
     inp.growth = 1.0;
-    assert!(matches!(mesh(&inp), Err(MeshError::Parameter { name: "growth", .. })));
+    assert!(matches!(
+        mesh(&inp),
+        Err(MeshError::Parameter { name: "growth", .. })
+    ));
     let mut inp = MeshInput::new(outer.clone(), 0.1);
     inp.min_angle_deg = 40.0;
-    assert!(matches!(mesh(&inp), Err(MeshError::Parameter { name: "min_angle_deg", .. })));
+    assert!(matches!(
+        mesh(&inp),
+        Err(MeshError::Parameter {
+            name: "min_angle_deg",
+            ..
+        })
+    ));
     let inp = MeshInput::new(outer.clone(), f64::NAN);
-    assert!(matches!(mesh(&inp), Err(MeshError::Parameter { name: "max_size", .. })));
+    assert!(matches!(
+        mesh(&inp),
+        Err(MeshError::Parameter {
+            name: "max_size",
+            ..
+        })
+    ));
     let mut inp = MeshInput::new(outer.clone(), 0.1);
-    inp.shapes.push(shape(Outline::circle([0.5, 0.5], 0.1).unwrap(), 0.0));
-    assert!(matches!(mesh(&inp), Err(MeshError::Parameter { name: "shapes[].mesh_size", .. })));
+    inp.shapes
+        .push(shape(Outline::circle([0.5, 0.5], 0.1).unwrap(), 0.0));
+    assert!(matches!(
+        mesh(&inp),
+        Err(MeshError::Parameter {
+            name: "shapes[].mesh_size",
+            ..
+        })
+    ));
     // 1e-5 over a unit square is over 10^10 triangles.
     let inp = MeshInput::new(outer.clone(), 1e-5);
     assert!(matches!(mesh(&inp), Err(MeshError::TooLarge { .. })));
     let mut inp = MeshInput::new(outer, 0.1);
     inp.shapes.push(shape(Outline { loops: vec![] }, 0.1));
-    assert!(matches!(mesh(&inp), Err(MeshError::ShapeGeometry { shape: 0, .. })));
+    assert!(matches!(
+        mesh(&inp),
+        Err(MeshError::ShapeGeometry { shape: 0, .. })
+    ));
 }
 
 #[test]
