@@ -41,6 +41,10 @@ pub enum Command {
         /// Output directory (created if missing).
         #[arg(short, long, value_name = "DIR")]
         out: PathBuf,
+        /// Zoom the field map on a window x0,y0,x1,y1 (model length units),
+        /// e.g. on a gap.
+        #[arg(long, value_name = "X0,Y0,X1,Y1", value_parser = parse_view, allow_hyphen_values = true)]
+        view: Option<[f64; 4]>,
     },
     /// Mesh and solve the built-in demo model (an invented door-holding
     /// electromagnet), write every output and explain each number.
@@ -52,4 +56,17 @@ pub enum Command {
         #[arg(long, value_name = "FILE")]
         save_model: Option<PathBuf>,
     },
+}
+
+/// Parse `x0,y0,x1,y1` into a zoom window with some area.
+fn parse_view(s: &str) -> Result<[f64; 4], String> {
+    let v: Vec<f64> = s
+        .split(',')
+        .map(|p| p.trim().parse::<f64>().map_err(|_| format!("`{p}` is not a number")))
+        .collect::<Result<_, _>>()?;
+    match v[..] {
+        [x0, y0, x1, y1] if v.iter().all(|x| x.is_finite()) && x0 != x1 && y0 != y1 => Ok([x0, y0, x1, y1]),
+        [_, _, _, _] => Err("the window needs finite numbers with x0 ≠ x1 and y0 ≠ y1".into()),
+        _ => Err(format!("expected four numbers x0,y0,x1,y1, got {}", v.len())),
+    }
 }

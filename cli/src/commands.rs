@@ -3,7 +3,7 @@
 
 use crate::args::{Cli, Command};
 use crate::output::Staging;
-use crate::plot::{self, MeshPicture, RegionStyle};
+use crate::plot::{self, FieldPicture, MeshPicture, RegionStyle};
 use crate::vtu;
 use crate::Failure;
 use anyhow::{Context, Result};
@@ -27,9 +27,9 @@ pub fn run(cli: Cli) -> Result<u8> {
             let model = load_model(&model)?;
             mesh(&model, &out)
         }
-        Command::Solve { model, out } => {
+        Command::Solve { model, out, view } => {
             let model = load_model(&model)?;
-            solve(&model, &out)
+            solve(&model, &out, view)
         }
         Command::Demo { out, save_model } => demo(&out, save_model.as_deref()),
     }
@@ -262,7 +262,7 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
     }
     print_summary(&model);
     println!();
-    let code = solve(&model, out)?;
+    let code = solve(&model, out, None)?;
     println!();
     println!("How to read these numbers:");
     println!("  stored energy  the magnetic energy in the device and the air around it, for its 60 mm depth;");
@@ -277,7 +277,7 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
 
 /// Mesh, solve and write results.json and fields.vtu (and the mesh files). Exit code 3 when
 /// Newton did not converge (the results are still written, marked).
-fn solve(model: &Model, out: &Path) -> Result<u8> {
+fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
     let start = Instant::now();
     let (mesh, mesh_seconds) = build_mesh(model)?;
     let setup = study::problem(model, &mesh).map_err(|e| Failure::input(format!("{}: {e}", model.source)))?;
@@ -315,6 +315,7 @@ fn solve(model: &Model, out: &Path) -> Result<u8> {
         ],
     );
     staging.write("fields.vtu", doc.as_bytes())?;
+    write_field_map(model, &mesh, &solution, &points, view, &mut staging)?;
     staging.write("results.json", serde_json::to_string_pretty(&results)?.as_bytes())?;
     staging.commit()?;
 
@@ -355,4 +356,85 @@ fn print_results(model: &Model, r: &study::SolveResults) {
     for n in &r.notes {
         println!("  note: {n}");
     }
+}
+
+/// field.png and field.svg: |B| shading, flux lines, shape outlines.
+fn write_field_map(
+    model: &Model,
+    mesh: &Mesh,
+    solution: &fluxwright_solver::field::Solution,
+    points: &[[f64; 2]],
+    view: Option<[f64; 4]>,
+    staging: &mut Staging,
+) -> Result<()> {
+    let dofs = &solution.dofs().element_dofs;
+    let quadratic = dofs.len() == 6 * mesh.triangles.len();
+    let mut cells = Vec::with_capacity(mesh.triangles.len() * if quadratic { 4 } else { 1 });
+    let mut values = Vec::with_capacity(cells.capacity());
+    for t in 0..mesh.triangles.len() {
+        if quadratic {
+            // Four sub-triangles through the mid-edge nodes, each shaded by
+            // |B| at its own centroid (barycentric coordinates below).
+            let d = &dofs[6 * t..6 * t + 6];
+            let (a, b, c, ab, bc, ca) = (d[0], d[1], d[2], d[3], d[4], d[5]);
+            let (two, one) = (2.0 / 3.0, 1.0 / 6.0);
+            for (cell, l) in [
+                ([a, ab, ca], [two, one, one]),
+                ([ab, b, bc], [one, two, one]),
+                ([ca, bc, c], [one, one, two]),
+                ([ab, bc, ca], [1.0 / 3.0; 3]),
+            ] {
+                cells.push(cell);
+                values.push(solution.field_in(t, l).b_magnitude());
+            }
+        } else {
+            cells.push(mesh.triangles[t]);
+            values.push(solution.field_in(t, [1.0 / 3.0; 3]).b_magnitude());
+        }
+    }
+    let flux = study::flux_function(solution);
+    let outlines = region_outlines(mesh);
+    let title = format!("{}: |B| and flux lines", model.title);
+    let (png, svg) = (staging.path("field.png")?, staging.path("field.svg")?);
+    plot::field_map(
+        &png,
+        &svg,
+        &FieldPicture {
+            title: &title,
+            unit: model.length_unit.as_str(),
+            points,
+            cells: &cells,
+            cell_values: &values,
+            flux: &flux,
+            outlines: &outlines,
+            view,
+            flux_lines: 24,
+        },
+    )
+}
+
+/// Mesh edges where the region changes, and the outer edge: the outlines of
+/// what is left of each shape.
+fn region_outlines(mesh: &Mesh) -> Vec<[[f64; 2]; 2]> {
+    let topo = mesh.edge_topology();
+    let mut owner: Vec<Option<u32>> = vec![None; topo.edges.len()];
+    let mut differs = vec![false; topo.edges.len()];
+    let mut count = vec![0u8; topo.edges.len()];
+    for (t, te) in topo.triangle_edges.iter().enumerate() {
+        for &e in te {
+            let e = e as usize;
+            count[e] = count[e].saturating_add(1);
+            match owner[e] {
+                None => owner[e] = Some(mesh.regions[t]),
+                Some(r) if r != mesh.regions[t] => differs[e] = true,
+                _ => {}
+            }
+        }
+    }
+    topo.edges
+        .iter()
+        .enumerate()
+        .filter(|&(e, _)| differs[e] || count[e] == 1)
+        .map(|(_, &[a, b])| [mesh.nodes[a as usize], mesh.nodes[b as usize]])
+        .collect()
 }

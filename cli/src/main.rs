@@ -4,6 +4,7 @@
 //! 3 the solver did not converge (results written and marked).
 
 mod args;
+mod colormap;
 mod commands;
 mod output;
 mod plot;

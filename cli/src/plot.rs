@@ -177,3 +177,207 @@ pub(crate) fn equal_aspect(lo: [f64; 2], hi: [f64; 2], w: f64, h: f64) -> (f64, 
     let scale = ((hi[0] - lo[0]) / w).max((hi[1] - lo[1]) / h) * 1.02;
     (cx - 0.5 * w * scale, cx + 0.5 * w * scale, cy - 0.5 * h * scale, cy + 0.5 * h * scale)
 }
+
+/// Everything needed to draw a field map: |B| shading, flux lines, outlines.
+pub struct FieldPicture<'a> {
+    /// Title above the plot.
+    pub title: &'a str,
+    /// Unit label for the axes.
+    pub unit: &'a str,
+    /// Plotting points in `unit`.
+    pub points: &'a [[f64; 2]],
+    /// Linear sub-triangles over `points`.
+    pub cells: &'a [[u32; 3]],
+    /// |B| of each cell, T.
+    pub cell_values: &'a [f64],
+    /// The flux function at each point (its contours are flux lines).
+    pub flux: &'a [f64],
+    /// Shape outlines as line segments, in `unit`.
+    pub outlines: &'a [[[f64; 2]; 2]],
+    /// Zoom window `[x0, y0, x1, y1]` in `unit`, or the whole mesh.
+    pub view: Option<[f64; 4]>,
+    /// Number of flux lines over the whole flux range.
+    pub flux_lines: usize,
+}
+
+/// Draw a field map as PNG (`png`) and SVG (`svg`).
+pub fn field_map(png: &Path, svg: &Path, pic: &FieldPicture) -> Result<()> {
+    ensure_font()?;
+    let (lo, hi) = match pic.view {
+        Some([x0, y0, x1, y1]) => ([x0.min(x1), y0.min(y1)], [x0.max(x1), y0.max(y1)]),
+        None => bounds(pic.points),
+    };
+    let plot_w = 1100u32;
+    let aspect = ((hi[1] - lo[1]) / (hi[0] - lo[0]).max(f64::MIN_POSITIVE)).clamp(0.25, 4.0);
+    let height = (((plot_w as f64 - 90.0) * aspect + 110.0).round() as u32).clamp(420, 4400);
+    let size = (plot_w + 190, height);
+    draw_field(BitMapBackend::new(png, size).into_drawing_area(), pic, lo, hi)?;
+    draw_field(SVGBackend::new(svg, size).into_drawing_area(), pic, lo, hi)?;
+    Ok(())
+}
+
+fn draw_field<DB: DrawingBackend>(
+    root: DrawingArea<DB, plotters::coord::Shift>,
+    pic: &FieldPicture,
+    lo: [f64; 2],
+    hi: [f64; 2],
+) -> Result<()>
+where
+    DB::ErrorType: 'static,
+{
+    root.fill(&WHITE).map_err(plot_err)?;
+    let (w, h) = root.dim_in_pixel();
+    let (left, right) = root.split_horizontally(w - 190);
+    let (x0, x1, y0, y1) = equal_aspect(lo, hi, (w - 190 - 90) as f64, (h - 110) as f64);
+    let visible = |c: &[u32; 3]| {
+        let ps = c.map(|i| pic.points[i as usize]);
+        let (mx, my) = (ps.iter().map(|p| p[0]).fold(f64::INFINITY, f64::min), ps.iter().map(|p| p[1]).fold(f64::INFINITY, f64::min));
+        let (nx, ny) = (ps.iter().map(|p| p[0]).fold(f64::NEG_INFINITY, f64::max), ps.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max));
+        nx >= x0 && mx <= x1 && ny >= y0 && my <= y1
+    };
+    let shown: Vec<usize> = (0..pic.cells.len()).filter(|&c| visible(&pic.cells[c])).collect();
+    let top = scale_top(shown.iter().map(|&c| pic.cell_values[c]).collect());
+    let mut chart = ChartBuilder::on(&left)
+        .caption(pic.title, (FONT, 24))
+        .margin(12)
+        .x_label_area_size(40)
+        .y_label_area_size(60)
+        .build_cartesian_2d(x0..x1, y0..y1)
+        .map_err(plot_err)?;
+    chart
+        .configure_mesh()
+        .disable_mesh()
+        .x_desc(format!("x ({})", pic.unit))
+        .y_desc(format!("y ({})", pic.unit))
+        .label_style((FONT, 15))
+        .axis_desc_style((FONT, 17))
+        .draw()
+        .map_err(plot_err)?;
+    let pt = |i: u32| {
+        let p = pic.points[i as usize];
+        (p[0], p[1])
+    };
+    chart
+        .draw_series(shown.iter().map(|&c| {
+            let t = pic.cells[c];
+            let (r, g, b) = crate::colormap::flux_scale(pic.cell_values[c] / top);
+            Polygon::new(vec![pt(t[0]), pt(t[1]), pt(t[2])], RGBColor(r, g, b).filled())
+        }))
+        .map_err(plot_err)?;
+    // Flux lines: contours of the flux function at equal steps, so that the
+    // same flux flows between any two neighbouring lines.
+    let (fmin, fmax) = pic.flux.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)));
+    if fmax > fmin && pic.flux_lines > 0 {
+        let step = (fmax - fmin) / pic.flux_lines as f64;
+        let mut segments = Vec::new();
+        for &c in &shown {
+            contour_cell(pic, pic.cells[c], fmin, step, &mut segments);
+        }
+        chart
+            .draw_series(segments.iter().map(|s| PathElement::new(vec![s[0], s[1]], RGBColor(24, 24, 28).mix(0.8).stroke_width(1))))
+            .map_err(plot_err)?;
+    }
+    chart
+        .draw_series(pic.outlines.iter().map(|s| {
+            PathElement::new(vec![(s[0][0], s[0][1]), (s[1][0], s[1][1])], RGBColor(180, 40, 40).stroke_width(1))
+        }))
+        .map_err(plot_err)?;
+    colour_bar(&right, top, h)?;
+    root.present().map_err(plot_err)?;
+    Ok(())
+}
+
+/// Top of the colour scale: the 99.5th percentile of the shown values, so
+/// that a few singular corner values do not wash out the rest.
+fn scale_top(mut values: Vec<f64>) -> f64 {
+    values.retain(|v| v.is_finite());
+    if values.is_empty() {
+        return 1.0;
+    }
+    values.sort_by(f64::total_cmp);
+    let k = ((values.len() as f64 - 1.0) * 0.995).round() as usize;
+    let top = values[k];
+    if top > 0.0 { top } else { values[values.len() - 1].max(1e-12) }
+}
+
+fn contour_cell(pic: &FieldPicture, c: [u32; 3], fmin: f64, step: f64, out: &mut Vec<[(f64, f64); 2]>) {
+    let f = c.map(|i| pic.flux[i as usize]);
+    let p = c.map(|i| pic.points[i as usize]);
+    let lo = f.iter().copied().fold(f64::INFINITY, f64::min);
+    let hi = f.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    // Levels sit at half steps so that none falls exactly on a node value
+    // of a uniform boundary (A = 0 on the outer edge).
+    let first = ((lo - fmin) / step - 0.5).ceil().max(0.0) as i64;
+    let last = ((hi - fmin) / step - 0.5).floor() as i64;
+    for k in first..=last {
+        let level = fmin + (k as f64 + 0.5) * step;
+        let mut pts = Vec::with_capacity(2);
+        for e in 0..3 {
+            let (a, b) = (e, (e + 1) % 3);
+            if (f[a] < level) != (f[b] < level) {
+                let s = (level - f[a]) / (f[b] - f[a]);
+                pts.push((p[a][0] + s * (p[b][0] - p[a][0]), p[a][1] + s * (p[b][1] - p[a][1])));
+            }
+        }
+        if pts.len() == 2 {
+            out.push([pts[0], pts[1]]);
+        }
+    }
+}
+
+fn colour_bar<DB: DrawingBackend>(area: &DrawingArea<DB, plotters::coord::Shift>, top: f64, h: u32) -> Result<()>
+where
+    DB::ErrorType: 'static,
+{
+    let (bar_x, bar_w) = (24i32, 28i32);
+    let (bar_top, bar_bottom) = (70i32, h as i32 - 80);
+    area.draw(&Text::new("|B| (T)", (bar_x - 4, 40), (FONT, 18).into_font().color(&BLACK)))
+        .map_err(plot_err)?;
+    let n = (bar_bottom - bar_top).max(1);
+    for k in 0..n {
+        let t = 1.0 - k as f64 / n as f64;
+        let (r, g, b) = crate::colormap::flux_scale(t);
+        area.draw(&Rectangle::new([(bar_x, bar_top + k), (bar_x + bar_w, bar_top + k + 1)], RGBColor(r, g, b).filled()))
+            .map_err(plot_err)?;
+    }
+    area.draw(&Rectangle::new([(bar_x, bar_top), (bar_x + bar_w, bar_bottom)], BLACK.stroke_width(1)))
+        .map_err(plot_err)?;
+    let ticks = nice_ticks(top);
+    for v in ticks {
+        let y = bar_bottom - ((v / top) * (bar_bottom - bar_top) as f64).round() as i32;
+        area.draw(&PathElement::new(vec![(bar_x + bar_w, y), (bar_x + bar_w + 6, y)], BLACK.stroke_width(1)))
+            .map_err(plot_err)?;
+        area.draw(&Text::new(format_tesla(v), (bar_x + bar_w + 10, y - 8), (FONT, 15).into_font().color(&BLACK)))
+            .map_err(plot_err)?;
+    }
+    area.draw(&Text::new(
+        format!("top: {} T and above", format_tesla(top)),
+        (4, bar_bottom + 22),
+        (FONT, 13).into_font().color(&EDGE),
+    ))
+    .map_err(plot_err)?;
+    area.draw(&Text::new("lines: equal flux steps", (4, bar_bottom + 42), (FONT, 13).into_font().color(&EDGE)))
+        .map_err(plot_err)?;
+    Ok(())
+}
+
+/// Round tick values from 0 to `top` (steps of 1, 2 or 5 × 10^k).
+fn nice_ticks(top: f64) -> Vec<f64> {
+    if !(top > 0.0) {
+        return vec![0.0];
+    }
+    let raw = top / 5.0;
+    let mag = 10f64.powf(raw.log10().floor());
+    let step = [1.0, 2.0, 5.0, 10.0].iter().map(|m| m * mag).find(|s| *s >= raw).unwrap_or(10.0 * mag);
+    (0..).map(|k| k as f64 * step).take_while(|v| *v <= top * (1.0 + 1e-9)).collect()
+}
+
+fn format_tesla(v: f64) -> String {
+    if v == 0.0 {
+        "0".into()
+    } else if v >= 0.1 {
+        format!("{v:.2}")
+    } else {
+        format!("{v:.2e}")
+    }
+}

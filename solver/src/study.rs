@@ -345,3 +345,20 @@ pub fn results(model: &Model, mesh: &Mesh, setup: &ProblemSetup, solution: &Solu
         notes,
     }
 }
+
+/// The flux function at every dof, whose contours are flux lines at equal
+/// flux steps: A_z (Wb/m) for planar models, 2π r A_φ (Wb, the flux through
+/// the circle of radius r) for axisymmetric ones.
+pub fn flux_function(solution: &Solution) -> Vec<f64> {
+    let a = solution.potential();
+    match solution.assembler().problem().symmetry {
+        Symmetry::Planar { .. } => a.to_vec(),
+        Symmetry::Axisymmetric => solution
+            .dofs()
+            .coords
+            .iter()
+            .zip(a)
+            .map(|(p, a)| std::f64::consts::TAU * p[0] * a)
+            .collect(),
+    }
+}
