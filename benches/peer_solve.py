@@ -70,7 +70,8 @@ def outer_area_mm2():
 
 
 def skfem_solve(unknowns, solver):
-    """Mesh, assemble and solve with scikit-fem; returns (seconds, dofs, energy)."""
+    """Mesh, assemble and solve with scikit-fem; returns (seconds, dofs,
+    energy, seconds per phase)."""
     t0 = time.perf_counter()
     h = math.sqrt(outer_area_mm2() / unknowns)  # square cells, one node each
     rects = rectangles()
@@ -86,17 +87,21 @@ def skfem_solve(unknowns, solver):
     nq = basis.X.shape[1]
     nu = np.repeat(np.where(iron, peer.NU0 / MU_R, peer.NU0)[:, None], nq, axis=1)
     jq = np.repeat(j[:, None], nq, axis=1)
+    t_mesh = time.perf_counter()
     k = asm(stiffness, basis, nu=nu)
     f = asm(load, basis, j=jq)
     dirichlet = basis.get_dofs().all()
     kc, fc, _, interior = condense(k, f, D=dirichlet)
     a = np.zeros(basis.N)
+    t_asm = time.perf_counter()
     if solver == "superlu":
         a[interior] = spla.splu(kc.tocsc(), permc_spec="MMD_AT_PLUS_A").solve(fc)
     else:
         a[interior] = cholmod_cholesky(kc.tocsc())(fc)
+    t_solve = time.perf_counter()
     energy = 0.5 * float(a @ (k @ a)) * peer.DEPTH_MM * peer.MM
-    return time.perf_counter() - t0, int(len(interior)), energy
+    phases = {"mesh+basis": t_mesh - t0, "assembly": t_asm - t_mesh, "factor+solve": t_solve - t_asm}
+    return time.perf_counter() - t0, int(len(interior)), energy, phases
 
 
 def fluxwright_model(size_mm):
@@ -135,9 +140,10 @@ condition = "zero-potential"
 
 def fluxwright_solve(unknowns, work):
     """Run the release CLI; returns (wall seconds, its own seconds, dofs, energy)."""
-    # A Delaunay mesh of target edge h has about 1.15 A / h^2 nodes
-    # (equilateral triangles: 2 per node, area sqrt(3)/4 h^2 each).
-    size = math.sqrt(1.15 * outer_area_mm2() / unknowns)
+    # Equilateral triangles of edge h would give 1.15 A / h^2 nodes; the
+    # mesher's edges run shorter than `max_size`, and 2.56 A / h^2 is what
+    # it gave here (measured at 100k unknowns, mesher of this commit).
+    size = math.sqrt(2.56 * outer_area_mm2() / unknowns)
     model = work / f"linear_{unknowns}.toml"
     model.write_text(fluxwright_model(round(size, 4)))
     out = work / f"out_{unknowns}"
@@ -157,13 +163,18 @@ def main():
         print("scikit-sparse (CHOLMOD) not importable: CHOLMOD timing skipped")
     print(f"{'case':<28} {'unknowns':>10} {'seconds':>9} {'energy J':>12}")
     with tempfile.TemporaryDirectory() as tmp:
+        # Warm-up (first-call costs of numpy/scipy/skfem and of the binary).
+        for solver in solvers:
+            skfem_solve(2000, solver)
+        fluxwright_solve(2000, Path(tmp))
         for n in sizes:
             wall, own, dofs, energy = fluxwright_solve(n, Path(tmp))
             print(f"{'fluxwright CLI (end to end)':<28} {dofs:>10} {wall:>9.2f} {energy:>12.6f}")
             print(f"{'  of which mesh + solve':<28} {dofs:>10} {own:>9.2f}")
             for solver in solvers:
-                secs, sk_dofs, sk_energy = skfem_solve(n, solver)
+                secs, sk_dofs, sk_energy, phases = skfem_solve(n, solver)
                 print(f"{'scikit-fem + ' + solver:<28} {sk_dofs:>10} {secs:>9.2f} {sk_energy:>12.6f}")
+                print("  phases: " + ", ".join(f"{k} {v:.2f} s" for k, v in phases.items()))
                 print(
                     f"  ratio scikit-fem+{solver} / fluxwright: {secs / wall:.2f} end to end, "
                     f"{secs / own:.2f} against mesh + solve; energies differ by {sk_energy / energy - 1:+.2e}"

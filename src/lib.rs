@@ -9,3 +9,8 @@
 
 pub use fluxwright_mesher as mesher;
 pub use fluxwright_solver as solver;
+
+/// The README's code examples, compiled and run as doctests.
+#[doc = include_str!("../README.md")]
+#[cfg(doctest)]
+pub struct ReadmeDoctests;

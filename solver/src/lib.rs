@@ -14,5 +14,6 @@ pub mod field;
 pub mod linear;
 pub mod material;
 pub mod nonlinear;
+pub mod post;
 pub mod problem;
 pub mod study;

@@ -1,0 +1,3 @@
+//! Results computed from a solved field.
+
+pub mod force;
