@@ -291,6 +291,23 @@ pub struct SolveInfo {
     pub error_estimate: Option<f64>,
     /// ‖R‖/‖R₀‖ before the first step and after each step.
     pub residual_history: Vec<f64>,
+    /// Seconds spent in each phase of the solve.
+    pub timings_s: TimingsInfo,
+}
+
+/// `results.solve.timings_s`.
+#[derive(Clone, Debug, Serialize)]
+pub struct TimingsInfo {
+    /// Dofs, constraints, sparsity pattern.
+    pub setup: f64,
+    /// Symbolic analysis (ordering) of the linear solver, once.
+    pub analyze: f64,
+    /// All assemblies.
+    pub assembly: f64,
+    /// All numeric factorisations.
+    pub factor: f64,
+    /// All triangular solves.
+    pub solve: f64,
 }
 
 /// `results.probes.NAME`.
@@ -338,6 +355,13 @@ pub fn results(model: &Model, mesh: &Mesh, setup: &ProblemSetup, solution: &Solu
             seconds,
             error_estimate: None,
             residual_history: report.residual_history.clone(),
+            timings_s: TimingsInfo {
+                setup: report.timings.setup_s,
+                analyze: report.timings.analyze_s,
+                assembly: report.timings.assembly_s,
+                factor: report.timings.factor_s,
+                solve: report.timings.solve_s,
+            },
         },
         energy_j: solution.energy(),
         coenergy_j: solution.coenergy(),
