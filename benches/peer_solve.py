@@ -8,7 +8,9 @@ about 100k and 1M unknowns:
 * scikit-fem: its own uniform structured mesh (grid lines through every
   material edge), assembly, Dirichlet condensation and a direct solve with
   SciPy's SuperLU (minimum-degree ordering on A + A^T), and with CHOLMOD
-  when scikit-sparse imports (skipped otherwise);
+  when scikit-sparse imports (skipped otherwise; on Debian 12 it builds
+  with `apt-get install libsuitesparse-dev` and `pip install
+  scikit-sparse==0.4.16`, since 0.5 needs SuiteSparse 7);
 * fluxwright: `target/release/fluxwright solve` on a generated model whose
   uniform mesh size gives about the same number of unknowns, timed end to
   end as a subprocess (mesh, solve, and writing results.json, fields.vtu
