@@ -159,3 +159,52 @@ fn demo_runs_and_can_save_its_model() {
     let check = fluxwright(&["check", saved.to_str().unwrap()]);
     assert!(check.status.success(), "stderr: {}", stderr(&check));
 }
+
+#[test]
+fn every_bad_model_exits_1_naming_its_line_and_culprit() {
+    // Each file under tests/models/bad/ starts with `# expect: LINE | TEXT`.
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("../tests/models/bad");
+    let mut seen = 0;
+    for entry in std::fs::read_dir(&dir).unwrap() {
+        let path = entry.unwrap().path();
+        let text = std::fs::read_to_string(&path).unwrap();
+        let expect = text.lines().next().unwrap().strip_prefix("# expect: ").expect("expect header");
+        let (line, what) = expect.split_once(" | ").unwrap();
+        let out_dir = scratch(&format!("bad-{seen}"));
+        for args in [vec!["check", path.to_str().unwrap()], vec!["mesh", path.to_str().unwrap(), "-o", out_dir.to_str().unwrap()]] {
+            let out = fluxwright(&args);
+            let err = stderr(&out);
+            assert_eq!(out.status.code(), Some(1), "{}: {err}", path.display());
+            let file = path.file_name().unwrap().to_str().unwrap();
+            assert!(err.contains(&format!("{file}:{line}:")), "{file}: no line {line} in:\n{err}");
+            assert!(err.contains(what), "{file}: `{what}` missing from:\n{err}");
+            assert!(!err.contains("panicked"), "{err}");
+        }
+        assert!(!out_dir.join("mesh.json").exists());
+        seen += 1;
+    }
+    assert!(seen >= 8, "only {seen} bad models found");
+}
+
+#[test]
+fn every_good_model_checks_and_solves() {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("../tests/models/good");
+    for entry in std::fs::read_dir(&dir).unwrap() {
+        let path = entry.unwrap().path();
+        if path.extension().and_then(|e| e.to_str()) != Some("toml") {
+            continue;
+        }
+        let out = fluxwright(&["check", path.to_str().unwrap()]);
+        assert!(out.status.success(), "{}: {}", path.display(), stderr(&out));
+        let out_dir = scratch(path.file_stem().unwrap().to_str().unwrap());
+        let out = fluxwright(&["solve", path.to_str().unwrap(), "-o", out_dir.to_str().unwrap()]);
+        assert!(out.status.success(), "{}: {}", path.display(), stderr(&out));
+        let results: serde_json::Value =
+            serde_json::from_str(&std::fs::read_to_string(out_dir.join("results.json")).unwrap()).unwrap();
+        assert_eq!(results["solve"]["converged"], true, "{}", path.display());
+        assert!(results["energy_j"].as_f64().unwrap() > 0.0, "{}", path.display());
+        for file in ["field.png", "field.svg", "fields.vtu", "mesh.json"] {
+            assert!(out_dir.join(file).exists(), "{}: {file}", path.display());
+        }
+    }
+}

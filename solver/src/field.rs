@@ -5,10 +5,12 @@
 
 use crate::assembly::{Assembler, DofMap};
 use crate::fe::{quadrature, CurlBasis, MAX_LOCAL};
+use crate::linear::{FaerCholesky, SpdSolver};
 use crate::material::NU0;
 use crate::nonlinear::NewtonReport;
+use crate::problem::SolveError;
 use rayon::prelude::*;
-use std::sync::OnceLock;
+use std::sync::{Mutex, OnceLock};
 
 /// The field in one triangle at one point.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -50,6 +52,31 @@ pub struct Solution<'p> {
     /// What the nonlinear iteration did.
     pub report: NewtonReport,
     locator: OnceLock<Locator>,
+    tangent: Mutex<TangentCache>,
+}
+
+/// The tangent system at the solution, as far as the solve left it: the
+/// assembled values, an analysed (and possibly factored) solver.
+#[derive(Default)]
+pub(crate) struct TangentCache {
+    /// Tangent values at the final potential, in pattern order.
+    pub values: Option<Vec<f64>>,
+    /// A solver whose symbolic analysis is done for the pattern.
+    pub solver: Option<Box<dyn SpdSolver>>,
+    /// Whether `solver` holds the numeric factorisation of `values`.
+    pub factored: bool,
+}
+
+/// What [`Solution::solve_tangent`] had to do besides the triangular solves.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct TangentWork {
+    /// The tangent matrix was assembled (it was not kept from the solve).
+    pub assembled: bool,
+    /// A symbolic analysis was run (none was kept from the solve).
+    pub analysed: bool,
+    /// A numeric factorisation was run (the solve's last one was not at
+    /// the final potential, as after a nonlinear solve).
+    pub factored: bool,
 }
 
 impl std::fmt::Debug for Solution<'_> {
@@ -72,7 +99,78 @@ impl<'p> Solution<'p> {
             potential,
             report,
             locator: OnceLock::new(),
+            tangent: Mutex::new(TangentCache::default()),
         }
+    }
+
+    /// Keep what the solve knows of the tangent at the final potential.
+    pub(crate) fn set_tangent(&mut self, cache: TangentCache) {
+        self.tangent = Mutex::new(cache);
+    }
+
+    /// Solve K_t x = b in place for each right-hand side, with K_t the
+    /// reduced tangent matrix (Jacobian of the residual) at the solution;
+    /// vectors are in reduced unknowns (length `assembler().constraints.n_free`).
+    ///
+    /// The first call reuses what the solve kept: after [`crate::nonlinear::solve`]
+    /// of a linear problem the factorisation itself (no new factorisation),
+    /// after a nonlinear one the symbolic analysis and the tangent values at
+    /// the final iterate (one numeric factorisation). The factorisation is
+    /// then kept for later calls, so it lives as long as the solution.
+    pub fn solve_tangent(&self, rhs: &mut [Vec<f64>]) -> Result<TangentWork, SolveError> {
+        let n = self.assembler.constraints.n_free;
+        if let Some(bad) = rhs.iter().find(|r| r.len() != n) {
+            return Err(crate::linear::LinearError::Size {
+                expected: n,
+                got: bad.len(),
+            }
+            .into());
+        }
+        let mut work = TangentWork::default();
+        if n == 0 {
+            return Ok(work);
+        }
+        // A poisoned lock only means another caller panicked mid-solve; the
+        // cache is rebuilt from scratch in that case.
+        let mut cache = match self.tangent.lock() {
+            Ok(c) => c,
+            Err(poisoned) => {
+                let mut c = poisoned.into_inner();
+                *c = TangentCache::default();
+                c
+            }
+        };
+        let cache = &mut *cache;
+        if cache.values.is_none() {
+            let mut values = vec![0.0; self.assembler.pattern.nnz()];
+            let mut residual = vec![0.0; n];
+            self.assembler
+                .assemble(&self.potential, Some(&mut values), &mut residual);
+            cache.values = Some(values);
+            cache.factored = false;
+            work.assembled = true;
+        }
+        let solver = match &mut cache.solver {
+            Some(s) => s,
+            empty => {
+                let mut s: Box<dyn SpdSolver> = Box::new(FaerCholesky::default());
+                s.analyze(&self.assembler.pattern)?;
+                cache.factored = false;
+                work.analysed = true;
+                empty.insert(s)
+            }
+        };
+        if !cache.factored {
+            if let Some(values) = &cache.values {
+                solver.factor(values)?;
+            }
+            cache.factored = true;
+            work.factored = true;
+        }
+        for r in rhs.iter_mut() {
+            solver.solve(r)?;
+        }
+        Ok(work)
     }
 
     /// The potential at every dof, Wb/m.

@@ -11,7 +11,7 @@
 //! Problems with only linear materials take exactly one solve.
 
 use crate::assembly::Assembler;
-use crate::field::Solution;
+use crate::field::{Solution, TangentCache};
 use crate::linear::{FaerCholesky, SpdSolver};
 use crate::problem::{Problem, SolveError};
 use std::time::Instant;
@@ -105,19 +105,48 @@ pub struct NewtonReport {
 }
 
 /// Solve `problem` with faer's Cholesky factorisation.
+///
+/// The solution keeps the solver (its symbolic analysis, and for a linear
+/// problem its factorisation) and the tangent at the final iterate, for
+/// later solves with the tangent ([`Solution::solve_tangent`]: incremental
+/// inductances).
 pub fn solve<'p>(
     problem: &'p Problem<'p>,
     options: &NewtonOptions,
 ) -> Result<Solution<'p>, SolveError> {
-    solve_with(problem, options, &mut FaerCholesky::default())
+    let mut solver = FaerCholesky::default();
+    let (mut solution, values, factored) = run(problem, options, &mut solver)?;
+    solution.set_tangent(TangentCache {
+        values: Some(values),
+        solver: Some(Box::new(solver)),
+        factored,
+    });
+    Ok(solution)
 }
 
-/// Solve `problem` with the given linear solver.
+/// Solve `problem` with the given linear solver. The solution keeps the
+/// tangent values at the final iterate (not the solver).
 pub fn solve_with<'p>(
     problem: &'p Problem<'p>,
     options: &NewtonOptions,
     solver: &mut dyn SpdSolver,
 ) -> Result<Solution<'p>, SolveError> {
+    let (mut solution, values, _) = run(problem, options, solver)?;
+    solution.set_tangent(TangentCache {
+        values: Some(values),
+        solver: None,
+        factored: false,
+    });
+    Ok(solution)
+}
+
+/// The Newton iteration: the solution, the tangent values at its final
+/// potential, and whether `solver` holds their factorisation.
+fn run<'p>(
+    problem: &'p Problem<'p>,
+    options: &NewtonOptions,
+    solver: &mut dyn SpdSolver,
+) -> Result<(Solution<'p>, Vec<f64>, bool), SolveError> {
     let start = Instant::now();
     let assembler = Assembler::new(problem)?;
     let mut timings = Timings {
@@ -149,7 +178,7 @@ pub fn solve_with<'p>(
         report.converged = true;
         report.residual_history[0] = 0.0;
         report.timings = timings;
-        return Ok(Solution::new(assembler, u, report));
+        return Ok((Solution::new(assembler, u, report), values, false));
     }
     let mut current = reference;
     let mut trial_x = vec![0.0; n];
@@ -228,7 +257,11 @@ pub fn solve_with<'p>(
         }
     }
     report.timings = timings;
-    Ok(Solution::new(assembler, u, report))
+    // A linear problem's matrix does not depend on u, so its single
+    // factorisation is the tangent at the solution; after a nonlinear step
+    // the values were reassembled at the new iterate but not yet factored.
+    let factored = linear && report.iterations > 0;
+    Ok((Solution::new(assembler, u, report), values, factored))
 }
 
 /// Armijo backtracking on the residual norm: (α, ‖R(α)‖).

@@ -1,3 +1,6 @@
 //! Results computed from a solved field.
 
 pub mod force;
+pub mod loops;
+pub mod profiles;
+pub mod windings;
