@@ -8,6 +8,7 @@ mod colormap;
 mod commands;
 mod output;
 mod plot;
+mod raster;
 mod vtu;
 
 use clap::Parser;

@@ -107,11 +107,20 @@ pub fn mesh_png(path: &Path, pic: &MeshPicture) -> Result<()> {
         let p = pic.nodes[i as usize];
         (p[0], p[1])
     };
-    chart
-        .draw_series(pic.triangles.iter().zip(pic.region_of).map(|(t, &r)| {
-            Polygon::new(vec![pt(t[0]), pt(t[1]), pt(t[2])], colours[r].filled())
-        }))
-        .map_err(plot_err)?;
+    let (pw, ph) = chart.plotting_area().dim_in_pixel();
+    let shading = crate::raster::fill(
+        pw,
+        ph,
+        [x0, y0, x1, y1],
+        pic.nodes,
+        pic.triangles,
+        |t| {
+            let c = colours[pic.region_of[t]];
+            (c.0, c.1, c.2)
+        },
+        (255, 255, 255),
+    );
+    chart.draw_series(std::iter::once(image_element((x0, y1), shading)?)).map_err(plot_err)?;
     // Edges only while they can still be told apart at this resolution.
     if pic.triangles.len() <= 150_000 {
         let alpha = if pic.triangles.len() > 20_000 { 0.25 } else { 0.55 };
@@ -144,6 +153,12 @@ pub fn mesh_png(path: &Path, pic: &MeshPicture) -> Result<()> {
         .map_err(plot_err)?;
     root.present().map_err(plot_err)?;
     Ok(())
+}
+
+/// A raster placed with its top-left corner at `top_left` (data coordinates).
+fn image_element(top_left: (f64, f64), r: crate::raster::Raster) -> Result<BitMapElement<'static, (f64, f64)>> {
+    BitMapElement::with_owned_buffer(top_left, (r.width, r.height), r.rgb)
+        .ok_or_else(|| anyhow!("the shaded image does not fit its buffer"))
 }
 
 fn plot_err<E: std::fmt::Debug>(e: E) -> anyhow::Error {
@@ -253,17 +268,17 @@ where
         .axis_desc_style((FONT, 17))
         .draw()
         .map_err(plot_err)?;
-    let pt = |i: u32| {
-        let p = pic.points[i as usize];
-        (p[0], p[1])
-    };
-    chart
-        .draw_series(shown.iter().map(|&c| {
-            let t = pic.cells[c];
-            let (r, g, b) = crate::colormap::flux_scale(pic.cell_values[c] / top);
-            Polygon::new(vec![pt(t[0]), pt(t[1]), pt(t[2])], RGBColor(r, g, b).filled())
-        }))
-        .map_err(plot_err)?;
+    let (pw, ph) = chart.plotting_area().dim_in_pixel();
+    let shading = crate::raster::fill(
+        pw,
+        ph,
+        [x0, y0, x1, y1],
+        pic.points,
+        pic.cells,
+        |c| crate::colormap::flux_scale(pic.cell_values[c] / top),
+        (255, 255, 255),
+    );
+    chart.draw_series(std::iter::once(image_element((x0, y1), shading)?)).map_err(plot_err)?;
     // Flux lines: contours of the flux function at equal steps, so that the
     // same flux flows between any two neighbouring lines.
     let (fmin, fmax) = pic.flux.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)));
