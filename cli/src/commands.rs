@@ -270,6 +270,13 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
     println!("  co-energy      the energy's twin from ∫B·dH; it exceeds the energy once the steel saturates");
     println!("  probe          the flux density in the middle of the 0.3 mm gap under the centre leg; a");
     println!("                 hand estimate with ideal steel and no fringing, μ0·N·I/(g·(1 + 15/20)), gives 0.57 T");
+    println!("  winding        flux linkage λ of the 600 turns; inductance λ/I; incremental dλ/dI from the");
+    println!("                 tangent at this current (below λ/I once the steel starts to saturate)");
+    println!("  force          the pull on the armature (negative y: towards the core) by the weighted");
+    println!("                 Maxwell stress tensor; B²A/2μ0 over the three pole faces gives about 195 N");
+    println!("  loop           Ampère's law: ∮H·dl around a path through steel, gap and armature equals");
+    println!("                 the 240 A-turns of the coil side it encloses; the mismatch says how well");
+    println!("  profile        B along a line through the gap, as CSV and a plot under profiles/");
     println!("  Newton steps   iterations of the nonlinear solve for the saturating steel, to a 1e-8 residual");
     println!("Open fields.vtu in ParaView to see |B|, B, H and μr per triangle.");
     Ok(code)
@@ -316,6 +323,16 @@ fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
     );
     staging.write("fields.vtu", doc.as_bytes())?;
     write_field_map(model, &mesh, &solution, &points, view, &mut staging)?;
+    for (name, samples) in study::profile_samples(model, &solution) {
+        let file = study::profile_file(&name);
+        staging.write(&file, fluxwright_solver::post::profiles::profile_csv(&samples).as_bytes())?;
+        let points: Vec<plot::ProfilePoint> = samples
+            .iter()
+            .map(|s| (s.position, s.field.as_ref().map(|f| [f.b[0], f.b[1], f.b_magnitude])))
+            .collect();
+        let png = staging.path(&file.replace(".csv", ".png"))?;
+        plot::profile_png(&png, &format!("{}: profile {name}", model.title), model.length_unit.as_str(), &points)?;
+    }
     staging.write("results.json", serde_json::to_string_pretty(&results)?.as_bytes())?;
     staging.commit()?;
 
@@ -352,6 +369,28 @@ fn print_results(model: &Model, r: &study::SolveResults) {
             "  probe {name}: |B| = {:.4} T, B = ({:.4}, {:.4}) T, H = ({:.4e}, {:.4e}) A/m",
             p.b_magnitude_t, p.b_t[0], p.b_t[1], p.h_a_per_m[0], p.h_a_per_m[1]
         );
+    }
+    for (name, w) in &r.windings {
+        let secant = w.inductance_h.map(|l| format!("{l:.6e} H")).unwrap_or_else(|| "— (no current)".into());
+        println!(
+            "  winding {name}: {} turns × {} A, flux linkage {:.6e} Wb, inductance {secant}, incremental {:.6e} H",
+            w.turns, w.current_a, w.flux_linkage_wb, w.incremental_inductance_h
+        );
+    }
+    for (name, f) in &r.forces {
+        println!("  force {name}: ({:.6e}, {:.6e}) N by the {}", f.force_n[0], f.force_n[1], f.method);
+    }
+    for (name, t) in &r.torques {
+        println!("  torque {name}: {:.6e} N·m", t.torque_n_m);
+    }
+    for (name, l) in &r.loops {
+        println!(
+            "  loop {name}: ∮H·dl = {:.6e} A against {:.6e} A enclosed (mismatch {:.1e})",
+            l.h_line_integral_a, l.enclosed_current_a, l.relative_mismatch
+        );
+    }
+    for (name, file) in &r.profiles {
+        println!("  profile {name}: {file} (and .png)");
     }
     for n in &r.notes {
         println!("  note: {n}");

@@ -396,3 +396,59 @@ fn format_tesla(v: f64) -> String {
         format!("{v:.2e}")
     }
 }
+
+/// One sample of a profile: position along the line and (Bx, By, |B|), or
+/// `None` outside the mesh.
+pub type ProfilePoint = (f64, Option<[f64; 3]>);
+
+/// Plot a profile of B along a line: |B|, Bx and By against position.
+pub fn profile_png(path: &Path, title: &str, unit: &str, samples: &[ProfilePoint]) -> Result<()> {
+    ensure_font()?;
+    let inside: Vec<(f64, [f64; 3])> = samples.iter().filter_map(|(x, v)| v.map(|v| (*x, v))).collect();
+    let x_max = samples.last().map(|s| s.0).unwrap_or(1.0).max(f64::MIN_POSITIVE);
+    let (mut lo, mut hi) = (0.0f64, 0.0f64);
+    for (_, v) in &inside {
+        for c in v {
+            lo = lo.min(*c);
+            hi = hi.max(*c);
+        }
+    }
+    let pad = 0.05 * (hi - lo).max(1e-9);
+    let root = BitMapBackend::new(path, (1000, 600)).into_drawing_area();
+    root.fill(&WHITE).map_err(plot_err)?;
+    let mut chart = ChartBuilder::on(&root)
+        .caption(title, (FONT, 24))
+        .margin(14)
+        .x_label_area_size(44)
+        .y_label_area_size(70)
+        .build_cartesian_2d(0.0..x_max, (lo - pad)..(hi + pad))
+        .map_err(plot_err)?;
+    chart
+        .configure_mesh()
+        .light_line_style(RGBColor(235, 235, 235))
+        .x_desc(format!("position along the line ({unit})"))
+        .y_desc("flux density (T)")
+        .label_style((FONT, 15))
+        .axis_desc_style((FONT, 17))
+        .draw()
+        .map_err(plot_err)?;
+    // Dark for |B| (the quantity read first), two mid tones for components.
+    let series = [("|B|", 2, RGBColor(30, 40, 90), 3u32), ("Bx", 0, RGBColor(200, 110, 40), 2), ("By", 1, RGBColor(60, 150, 120), 2)];
+    for (label, k, colour, width) in series {
+        chart
+            .draw_series(LineSeries::new(inside.iter().map(|(x, v)| (*x, v[k])), colour.stroke_width(width)))
+            .map_err(plot_err)?
+            .label(label)
+            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 24, y)], colour.stroke_width(width)));
+    }
+    chart
+        .configure_series_labels()
+        .position(SeriesLabelPosition::UpperRight)
+        .background_style(WHITE.mix(0.9))
+        .border_style(RGBColor(120, 120, 120))
+        .label_font((FONT, 15))
+        .draw()
+        .map_err(plot_err)?;
+    root.present().map_err(plot_err)?;
+    Ok(())
+}

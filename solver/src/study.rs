@@ -18,8 +18,9 @@ use crate::fe::{ElementOrder, Symmetry};
 use crate::field::Solution;
 use crate::material::{BhCurve, Material, MaterialError};
 use crate::model::{EdgeKind, Excitation, Model, OuterCondition, Permeability, Symmetry as ModelSymmetry};
+use crate::kelvin::{Exterior, KelvinError, KelvinMap};
 use crate::problem::{BoundarySpec, EdgeCondition, Problem, RegionProps};
-use fluxwright_mesher::{Mesh, Outline, Point, Segment};
+use fluxwright_mesher::{Mesh, MeshError, Outline, Point, Segment};
 use serde::Serialize;
 use std::collections::BTreeMap;
 
@@ -45,6 +46,12 @@ pub enum StudyError {
     /// cover all of it).
     #[error("shape `{0}` carries current but later shapes cover all of it, so the current has nowhere to flow")]
     NoConductorArea(String),
+    /// The mesher failed.
+    #[error(transparent)]
+    Mesh(#[from] MeshError),
+    /// The open boundary's exterior could not be built.
+    #[error(transparent)]
+    Kelvin(#[from] KelvinError),
     /// An `[[edge]]` stretch matches no part of the outer edge.
     #[error("[[edge]] #{index} from {from:?} to {to:?}: {reason}")]
     Edge {
@@ -69,8 +76,61 @@ pub struct ProblemSetup<'m> {
     pub notes: Vec<String>,
 }
 
+/// The mesh of a model: the mesher's mesh of the model, followed, when the
+/// outer edge is open, by the Kelvin image of the exterior (its nodes and
+/// triangles come after the model's, so `nodes[..model_nodes]` and
+/// `triangles[..model_triangles]` are the model alone).
+#[derive(Clone, Debug)]
+pub struct ModelMesh {
+    /// The whole mesh, to solve on.
+    pub mesh: Mesh,
+    /// Number of the model's own nodes (the first ones).
+    pub model_nodes: usize,
+    /// Number of the model's own triangles (the first ones).
+    pub model_triangles: usize,
+    /// The inversion of the exterior, when the outer edge is open.
+    pub exterior: Option<KelvinMap>,
+}
+
+/// Mesh `model`, with the Kelvin image of the exterior when the outer edge
+/// is open.
+pub fn mesh_for(model: &Model) -> Result<ModelMesh, StudyError> {
+    let mut mesh = fluxwright_mesher::mesh(&model.mesh_input())?;
+    if matches!(model.symmetry, ModelSymmetry::Axisymmetric) {
+        // Outline points on the axis come out at x ≈ 1e-16 (cos 90°); put them
+        // exactly on it, where the field evaluation treats r = 0 as the axis.
+        let (lo, hi) = model.outer.outline.bounding_box();
+        let tol = 1e-9 * (hi[0] - lo[0]).max(hi[1] - lo[1]);
+        for p in &mut mesh.nodes {
+            if p[0].abs() <= tol {
+                p[0] = 0.0;
+            }
+        }
+    }
+    let (model_nodes, model_triangles) = (mesh.nodes.len(), mesh.triangles.len());
+    let mut exterior = None;
+    if let Some(plan) = open_exterior(model)? {
+        // Sizes grow from the rim's; the far field (the image centre) is
+        // smooth, so a few elements per radius do.
+        let max_size = model.mesh.max_size.min(plan.map.radius / 4.0);
+        plan.attach(&mut mesh, model.mesh.growth, max_size, model.mesh.min_angle_deg)?;
+        exterior = Some(plan.map);
+    }
+    Ok(ModelMesh { mesh, model_nodes, model_triangles, exterior })
+}
+
+/// The exterior plan of an open outer edge, `None` for other conditions.
+fn open_exterior(model: &Model) -> Result<Option<Exterior>, KelvinError> {
+    if !matches!(model.outer.condition, OuterCondition::Open) {
+        return Ok(None);
+    }
+    let axisymmetric = matches!(model.symmetry, ModelSymmetry::Axisymmetric);
+    Exterior::plan(&model.outer.outline, axisymmetric, model.shapes.len() as u32).map(Some)
+}
+
 /// Build the finite-element problem for `model` on `mesh` (which must be
-/// `fluxwright_mesher::mesh(&model.mesh_input())`).
+/// [`mesh_for`]`(model)?.mesh`, or `fluxwright_mesher::mesh(&model.mesh_input())`,
+/// with which an open outer edge falls back to A = 0).
 pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, StudyError> {
     let scale = model.unit_to_m();
     let mut notes = Vec::new();
@@ -78,8 +138,9 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
     // what is really meshed, so the total current is exact.
     let mut area = vec![0.0; model.shapes.len()];
     for (region, a) in mesh.region_areas() {
-        if region != Mesh::OUTER_REGION {
-            area[region as usize] = a * scale * scale;
+        // Region ids past the shapes are the open boundary's exterior.
+        if let Some(slot) = area.get_mut(region as usize) {
+            *slot = a * scale * scale;
         }
     }
     let mut side_area: BTreeMap<(usize, i8), f64> = BTreeMap::new();
@@ -127,6 +188,10 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
         densities.push(density);
         regions.push(RegionProps { material, current_density_a_per_m2: density });
     }
+    let exterior = open_exterior(model)?.filter(|e| e.is_attached(mesh));
+    if exterior.is_some() {
+        regions.push(RegionProps::air());
+    }
     regions.push(RegionProps::air());
 
     let default = match model.outer.condition {
@@ -134,12 +199,19 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
         OuterCondition::FluxNormal => EdgeCondition::FluxNormal,
         OuterCondition::UniformField { field_t } => EdgeCondition::UniformField { b: field_t },
         OuterCondition::Open => {
-            notes.push(
-                "open boundary: the Kelvin-transformed exterior is not built yet; A = 0 is imposed on the \
-                 outer edge instead, which is accurate when the outer edge is far (the default circle is \
-                 3× the model's extent)"
+            notes.push(match (&exterior, model.symmetry) {
+                (None, _) => "open boundary: the mesh has no Kelvin image of the exterior (mesh with \
+                              study::mesh_for); A = 0 is imposed on the outer edge instead"
                     .into(),
-            );
+                (Some(_), ModelSymmetry::Planar) => "open boundary: exterior by a Kelvin transformation; A = 0 at \
+                     infinity (with a net current A grows like ln r: B is exact, A's constant and the energy \
+                     are then set by the mesh at infinity)"
+                    .into(),
+                (Some(_), ModelSymmetry::Axisymmetric) => {
+                    "open boundary: exterior by a Kelvin transformation (A = 0 at infinity)".into()
+                }
+            });
+            // Straight sides of a sector not named by an [[edge]].
             EdgeCondition::ZeroPotential
         }
     };
@@ -175,6 +247,11 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
                 }
             }
         }
+    }
+
+    if let Some(e) = &exterior {
+        let extra = e.conditions(&boundary);
+        boundary.segments.extend(extra);
     }
 
     let symmetry = match model.symmetry {
@@ -245,6 +322,17 @@ pub struct SolveResults {
     pub coenergy_j: f64,
     /// Point probes by name.
     pub probes: BTreeMap<String, ProbeResult>,
+    /// Every winding: flux linkage, secant and incremental inductance.
+    pub windings: BTreeMap<String, WindingOut>,
+    /// Forces on named shapes.
+    pub forces: BTreeMap<String, ForceOut>,
+    /// Torques on named shapes.
+    pub torques: BTreeMap<String, TorqueOut>,
+    /// Ampère's-law checks.
+    pub loops: BTreeMap<String, LoopOut>,
+    /// Profile name → the CSV file (relative to the output folder) that the
+    /// caller writes from [`profile_samples`].
+    pub profiles: BTreeMap<String, String>,
     /// Assumptions made (e.g. how the open boundary was modelled).
     pub notes: Vec<String>,
 }
@@ -321,6 +409,62 @@ pub struct ProbeResult {
     pub h_a_per_m: [f64; 2],
 }
 
+/// `results.windings.NAME`.
+#[derive(Clone, Debug, Serialize)]
+pub struct WindingOut {
+    /// Series turns.
+    pub turns: f64,
+    /// Current per turn, A.
+    pub current_a: f64,
+    /// Flux linkage λ, Wb (for the depth, or the full turn).
+    pub flux_linkage_wb: f64,
+    /// Secant inductance λ/I, H (null at zero current).
+    pub inductance_h: Option<f64>,
+    /// Incremental inductance dλ/dI at the operating point, H.
+    pub incremental_inductance_h: f64,
+}
+
+/// `results.forces.NAME`.
+#[derive(Clone, Debug, Serialize)]
+pub struct ForceOut {
+    /// [Fx, Fy], N (axisymmetric: [0, Fz]).
+    pub force_n: [f64; 2],
+    /// `stress-tensor` or `virtual-work`.
+    pub method: &'static str,
+}
+
+/// `results.torques.NAME`.
+#[derive(Clone, Debug, Serialize)]
+pub struct TorqueOut {
+    /// Torque about the requested centre, N·m (counter-clockwise positive).
+    pub torque_n_m: f64,
+}
+
+/// `results.loops.NAME`.
+#[derive(Clone, Debug, Serialize)]
+pub struct LoopOut {
+    /// ∮H·dl around the loop, A.
+    pub h_line_integral_a: f64,
+    /// Source current enclosed by the loop, A.
+    pub enclosed_current_a: f64,
+    /// |∮H·dl − I| relative to |I| (or to ∮|H·dl| when I = 0).
+    pub relative_mismatch: f64,
+}
+
+/// The samples of every `[[profile]]`, for the caller to write as CSV.
+pub fn profile_samples(model: &Model, solution: &Solution) -> Vec<(String, Vec<crate::post::profiles::ProfileSample>)> {
+    model
+        .profiles
+        .iter()
+        .map(|p| (p.name.clone(), crate::post::profiles::sample_line(solution, p.from, p.to, p.samples)))
+        .collect()
+}
+
+/// The CSV file name of profile `name` inside the output folder.
+pub fn profile_file(name: &str) -> String {
+    format!("profiles/{name}.csv")
+}
+
 /// Gather the results of a solved model. `seconds` is the wall-clock time
 /// to report.
 pub fn results(model: &Model, mesh: &Mesh, setup: &ProblemSetup, solution: &Solution, seconds: f64) -> SolveResults {
@@ -338,6 +482,72 @@ pub fn results(model: &Model, mesh: &Mesh, setup: &ProblemSetup, solution: &Solu
             None => notes.push(format!("probe `{}` at {:?} lies outside the mesh; not reported", p.name, p.at)),
         }
     }
+    let mut windings = BTreeMap::new();
+    let specs = crate::post::windings::winding_specs(model);
+    if !specs.is_empty() {
+        match crate::post::windings::winding_results(solution, &specs) {
+            Ok(list) => {
+                for w in list {
+                    windings.insert(
+                        w.name.clone(),
+                        WindingOut {
+                            turns: w.turns,
+                            current_a: w.current_a,
+                            flux_linkage_wb: w.flux_linkage_wb,
+                            inductance_h: w.inductance_h,
+                            incremental_inductance_h: w.incremental_inductance_h,
+                        },
+                    );
+                }
+            }
+            Err(e) => notes.push(format!("windings not reported: {e}")),
+        }
+    }
+    let regions_of = |shapes: &[usize]| shapes.iter().map(|&i| i as u32).collect::<Vec<u32>>();
+    let mut forces = BTreeMap::new();
+    for f in &model.forces {
+        let label = match f.method {
+            crate::model::ForceMethod::StressTensor => "stress-tensor",
+            crate::model::ForceMethod::VirtualWork => "virtual-work",
+        };
+        match crate::post::force::force(solution, &regions_of(&f.shapes), f.method) {
+            Ok(force_n) => {
+                forces.insert(f.name.clone(), ForceOut { force_n, method: label });
+            }
+            Err(e) => notes.push(format!("force `{}` not reported: {e}", f.name)),
+        }
+    }
+    let mut torques = BTreeMap::new();
+    for t in &model.torques {
+        match crate::post::force::torque(
+            solution,
+            &regions_of(&t.shapes),
+            t.center,
+            crate::model::ForceMethod::StressTensor,
+        ) {
+            Ok(torque_n_m) => {
+                torques.insert(t.name.clone(), TorqueOut { torque_n_m });
+            }
+            Err(e) => notes.push(format!("torque `{}` not reported: {e}", t.name)),
+        }
+    }
+    let mut loops = BTreeMap::new();
+    for l in &model.loops {
+        match crate::post::loops::ampere_loop(solution, &l.outline) {
+            Ok(r) => {
+                loops.insert(
+                    l.name.clone(),
+                    LoopOut {
+                        h_line_integral_a: r.h_line_integral_a,
+                        enclosed_current_a: r.enclosed_current_a,
+                        relative_mismatch: r.relative_mismatch,
+                    },
+                );
+            }
+            Err(e) => notes.push(format!("loop `{}` not reported: {e}", l.name)),
+        }
+    }
+    let profiles = model.profiles.iter().map(|p| (p.name.clone(), profile_file(&p.name))).collect();
     SolveResults {
         format: "fluxwright-results/1",
         model: ModelInfo { title: model.title.clone(), symmetry: model.symmetry.as_str(), depth_m: model.depth_m() },
@@ -366,6 +576,11 @@ pub fn results(model: &Model, mesh: &Mesh, setup: &ProblemSetup, solution: &Solu
         energy_j: solution.energy(),
         coenergy_j: solution.coenergy(),
         probes,
+        windings,
+        forces,
+        torques,
+        loops,
+        profiles,
         notes,
     }
 }
