@@ -286,33 +286,42 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
 /// Newton did not converge (the results are still written, marked).
 fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
     let start = Instant::now();
-    let (mesh, mesh_seconds) = build_mesh(model)?;
-    let setup = study::problem(model, &mesh).map_err(|e| Failure::input(format!("{}: {e}", model.source)))?;
+    let mm = study::mesh_for(model).map_err(|e| Failure::input(format!("{}: meshing failed: {e}", model.source)))?;
+    mm.mesh
+        .check()
+        .with_context(|| format!("{}: the mesh failed its own checks (a bug; please report it)", model.source))?;
+    let mesh_seconds = start.elapsed().as_secs_f64();
+    let model_mesh = model_part(&mm);
+    let setup = study::problem(model, &mm.mesh).map_err(|e| Failure::input(format!("{}: {e}", model.source)))?;
     let solution = nonlinear::solve(&setup.problem, &Default::default())
         .map_err(|e| Failure::input(format!("{}: the solve failed: {e}", model.source)))?;
-    let results = study::results(model, &mesh, &setup, &solution, start.elapsed().as_secs_f64());
+    let results = study::results(model, &mm.mesh, &setup, &solution, start.elapsed().as_secs_f64());
 
     let mut staging = Staging::new(out)?;
-    write_mesh_files(model, &mesh, mesh_seconds, &mut staging)?;
-    let fields = solution.element_fields();
+    write_mesh_files(model, &model_mesh, mesh_seconds, &mut staging)?;
+    // Everything below shows the model only, not the Kelvin image of the
+    // exterior that an open boundary appends to the mesh.
+    let n_tri = model_mesh.triangles.len();
+    let fields = &solution.element_fields()[..n_tri];
     let shape_index: Vec<i32> =
-        mesh.regions.iter().map(|&r| if r == Mesh::OUTER_REGION { -1 } else { r as i32 }).collect();
+        model_mesh.regions.iter().map(|&r| if r == Mesh::OUTER_REGION { -1 } else { r as i32 }).collect();
+    let view_dofs = ViewDofs::new(&solution, n_tri, model.unit_to_m());
+    let potential: Vec<f64> = view_dofs.kept.iter().map(|&d| solution.potential()[d as usize]).collect();
     // Quadratic elements are written as VTK quadratic triangles, whose
     // node order (corners, then mid-edges 0-1, 1-2, 2-0) is our dof order.
-    let dofs = solution.dofs();
-    let to_model_units = 1.0 / model.unit_to_m();
-    let points: Vec<[f64; 2]> = dofs.coords.iter().map(|p| [p[0] * to_model_units, p[1] * to_model_units]).collect();
     let quadratic: Vec<[u32; 6]>;
-    let cells = if dofs.element_dofs.len() == 6 * mesh.triangles.len() {
-        quadratic = dofs.element_dofs.chunks_exact(6).map(|c| [c[0], c[1], c[2], c[3], c[4], c[5]]).collect();
+    let linear: Vec<[u32; 3]>;
+    let cells = if view_dofs.per_element == 6 {
+        quadratic = view_dofs.elements.chunks_exact(6).map(|c| [c[0], c[1], c[2], c[3], c[4], c[5]]).collect();
         vtu::Cells::QuadraticTriangles(&quadratic)
     } else {
-        vtu::Cells::Triangles(&mesh.triangles)
+        linear = view_dofs.elements.chunks_exact(3).map(|c| [c[0], c[1], c[2]]).collect();
+        vtu::Cells::Triangles(&linear)
     };
     let doc = vtu::render(
-        &points,
+        &view_dofs.points,
         cells,
-        &[vtu::Array::Scalar("A", solution.potential().to_vec())],
+        &[vtu::Array::Scalar("A", potential)],
         &[
             vtu::Array::Vector2("B", fields.iter().map(|f| f.b).collect()),
             vtu::Array::Vector2("H", fields.iter().map(|f| f.h).collect()),
@@ -322,7 +331,7 @@ fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
         ],
     );
     staging.write("fields.vtu", doc.as_bytes())?;
-    write_field_map(model, &mesh, &solution, &points, view, &mut staging)?;
+    write_field_map(model, &model_mesh, &solution, &view_dofs, view, &mut staging)?;
     for (name, samples) in study::profile_samples(model, &solution) {
         let file = study::profile_file(&name);
         staging.write(&file, fluxwright_solver::post::profiles::profile_csv(&samples).as_bytes())?;
@@ -346,6 +355,53 @@ fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
             model.source, results.solve.relative_residual, results.solve.iterations
         );
         Ok(3)
+    }
+}
+
+/// The model's own part of a mesh that may end with the Kelvin image.
+fn model_part(mm: &study::ModelMesh) -> Mesh {
+    let n = mm.model_nodes as u32;
+    Mesh {
+        nodes: mm.mesh.nodes[..mm.model_nodes].to_vec(),
+        triangles: mm.mesh.triangles[..mm.model_triangles].to_vec(),
+        regions: mm.mesh.regions[..mm.model_triangles].to_vec(),
+        boundary: mm.mesh.boundary.iter().filter(|e| e.nodes[0] < n && e.nodes[1] < n).copied().collect(),
+        report: mm.mesh.report.clone(),
+    }
+}
+
+/// The dofs of the model's first `n_tri` triangles, renumbered compactly,
+/// with their positions in model units.
+struct ViewDofs {
+    /// Dofs per element (3 or 6).
+    per_element: usize,
+    /// Original dof of each kept point.
+    kept: Vec<u32>,
+    /// Positions of the kept points, model units.
+    points: Vec<[f64; 2]>,
+    /// Element connectivity in the compact numbering.
+    elements: Vec<u32>,
+}
+
+impl ViewDofs {
+    fn new(solution: &fluxwright_solver::field::Solution, n_tri: usize, unit_to_m: f64) -> ViewDofs {
+        let dofs = solution.dofs();
+        let total = solution.assembler().problem().mesh.triangles.len().max(1);
+        let per_element = dofs.element_dofs.len() / total;
+        let mut index = vec![u32::MAX; dofs.n_dofs];
+        let mut kept = Vec::new();
+        let elements = dofs.element_dofs[..per_element * n_tri]
+            .iter()
+            .map(|&d| {
+                if index[d as usize] == u32::MAX {
+                    index[d as usize] = kept.len() as u32;
+                    kept.push(d);
+                }
+                index[d as usize]
+            })
+            .collect();
+        let points = kept.iter().map(|&d| dofs.coords[d as usize].map(|c| c / unit_to_m)).collect();
+        ViewDofs { per_element, kept, points, elements }
     }
 }
 
@@ -402,19 +458,18 @@ fn write_field_map(
     model: &Model,
     mesh: &Mesh,
     solution: &fluxwright_solver::field::Solution,
-    points: &[[f64; 2]],
+    view_dofs: &ViewDofs,
     view: Option<[f64; 4]>,
     staging: &mut Staging,
 ) -> Result<()> {
-    let dofs = &solution.dofs().element_dofs;
-    let quadratic = dofs.len() == 6 * mesh.triangles.len();
+    let quadratic = view_dofs.per_element == 6;
     let mut cells = Vec::with_capacity(mesh.triangles.len() * if quadratic { 4 } else { 1 });
     let mut values = Vec::with_capacity(cells.capacity());
     for t in 0..mesh.triangles.len() {
+        let d = &view_dofs.elements[view_dofs.per_element * t..view_dofs.per_element * (t + 1)];
         if quadratic {
             // Four sub-triangles through the mid-edge nodes, each shaded by
             // |B| at its own centroid (barycentric coordinates below).
-            let d = &dofs[6 * t..6 * t + 6];
             let (a, b, c, ab, bc, ca) = (d[0], d[1], d[2], d[3], d[4], d[5]);
             let (two, one) = (2.0 / 3.0, 1.0 / 6.0);
             for (cell, l) in [
@@ -427,11 +482,12 @@ fn write_field_map(
                 values.push(solution.field_in(t, l).b_magnitude());
             }
         } else {
-            cells.push(mesh.triangles[t]);
+            cells.push([d[0], d[1], d[2]]);
             values.push(solution.field_in(t, [1.0 / 3.0; 3]).b_magnitude());
         }
     }
-    let flux = study::flux_function(solution);
+    let all_flux = study::flux_function(solution);
+    let flux: Vec<f64> = view_dofs.kept.iter().map(|&d| all_flux[d as usize]).collect();
     let outlines = region_outlines(mesh);
     let title = format!("{}: |B| and flux lines", model.title);
     let (png, svg) = (staging.path("field.png")?, staging.path("field.svg")?);
@@ -441,7 +497,7 @@ fn write_field_map(
         &FieldPicture {
             title: &title,
             unit: model.length_unit.as_str(),
-            points,
+            points: &view_dofs.points,
             cells: &cells,
             cell_values: &values,
             flux: &flux,

@@ -134,6 +134,21 @@ impl SparsityPattern {
     }
 }
 
+/// The distinct Kelvin images named by the boundary conditions.
+fn kelvin_images(problem: &Problem<'_>) -> Vec<crate::kelvin::KelvinMap> {
+    let mut maps: Vec<crate::kelvin::KelvinMap> = Vec::new();
+    let conditions = std::iter::once(&problem.boundary.default)
+        .chain(problem.boundary.segments.iter().map(|(_, c)| c));
+    for c in conditions {
+        if let crate::problem::EdgeCondition::KelvinRim(map) = c {
+            if !maps.iter().any(|m| m.region == map.region) {
+                maps.push(*map);
+            }
+        }
+    }
+    maps
+}
+
 /// Elements per parallel work unit: large enough to amortise the task, small
 /// enough that the element buffers stay in cache-friendly sizes.
 const CHUNK: usize = 4096;
@@ -149,7 +164,18 @@ pub struct Assembler<'p> {
     /// The pattern of the reduced matrix.
     pub pattern: SparsityPattern,
     triangles: Vec<Triangle>,
+    /// Per triangle: an index into `problem.regions`, or (≥ its length) into
+    /// `image_props`.
     region_slot: Vec<u32>,
+    /// Per triangle: the index of its Kelvin image in `images`, or u32::MAX.
+    image_of: Vec<u32>,
+    /// The Kelvin images of open boundaries.
+    images: Vec<crate::kelvin::KelvinMap>,
+    /// Axisymmetric image triangles: their material with the transformed
+    /// reluctivity at the centroid (for post-processing only; the element
+    /// matrices integrate it exactly).
+    image_props: Vec<crate::problem::RegionProps>,
+    image_rule: TriangleRule,
     /// Per element and packed local pair: the value slot, or u32::MAX.
     scatter: Vec<u32>,
     /// Per element and packed local pair: sign product × multiplicity.
@@ -172,7 +198,7 @@ impl<'p> Assembler<'p> {
         // validate() guarantees an entry per region, so regions is non-empty
         // whenever there is a triangle.
         let last = problem.regions.len().saturating_sub(1);
-        let region_slot = mesh
+        let region_slot: Vec<u32> = mesh
             .regions
             .iter()
             .map(|&r| {
@@ -184,6 +210,51 @@ impl<'p> Assembler<'p> {
             })
             .collect();
         let s = problem.length_scale_m;
+        let images = kelvin_images(problem);
+        let mut region_slot: Vec<u32> = region_slot;
+        let mut image_of = vec![u32::MAX; n_tri];
+        let mut image_props = Vec::new();
+        for (k, map) in images.iter().enumerate() {
+            let props = problem
+                .region(map.region)
+                .ok_or_else(|| SolveError::KelvinImage {
+                    region: map.region,
+                    reason: "the image region has no entry in `regions`".into(),
+                })?;
+            let mu_r = match props.material {
+                crate::material::Material::Linear { mu_r }
+                    if props.current_density_a_per_m2 == 0.0 =>
+                {
+                    mu_r
+                }
+                _ => {
+                    return Err(SolveError::KelvinImage {
+                        region: map.region,
+                        reason: "the exterior must be a linear material without current".into(),
+                    })
+                }
+            };
+            for (t, &r) in mesh.regions.iter().enumerate() {
+                if r != map.region {
+                    continue;
+                }
+                image_of[t] = k as u32;
+                if let crate::fe::Symmetry::Axisymmetric = problem.symmetry {
+                    let [a, b, c] = mesh.triangles[t].map(|i| mesh.nodes[i as usize]);
+                    let centroid = [(a[0] + b[0] + c[0]) / 3.0, (a[1] + b[1] + c[1]) / 3.0];
+                    let factor = map
+                        .axisymmetric_reluctivity_factor(centroid)
+                        .max(f64::MIN_POSITIVE);
+                    region_slot[t] = (problem.regions.len() + image_props.len()) as u32;
+                    image_props.push(crate::problem::RegionProps {
+                        material: crate::material::Material::Linear {
+                            mu_r: mu_r / factor,
+                        },
+                        current_density_a_per_m2: 0.0,
+                    });
+                }
+            }
+        }
         let triangles = mesh
             .triangles
             .par_iter()
@@ -265,6 +336,13 @@ impl<'p> Assembler<'p> {
             pattern,
             triangles,
             region_slot,
+            image_of,
+            images,
+            image_props,
+            image_rule: crate::kelvin::image_rule(
+                &fe::element_rule(problem.order, problem.symmetry),
+                problem.symmetry,
+            ),
             scatter,
             factor,
             rule: fe::element_rule(problem.order, problem.symmetry),
@@ -284,7 +362,18 @@ impl<'p> Assembler<'p> {
 
     /// The region properties of triangle `t`.
     pub fn region_props(&self, t: usize) -> &crate::problem::RegionProps {
-        &self.problem.regions[self.region_slot[t] as usize]
+        let slot = self.region_slot[t] as usize;
+        let n = self.problem.regions.len();
+        if slot < n {
+            &self.problem.regions[slot]
+        } else {
+            &self.image_props[slot - n]
+        }
+    }
+
+    /// The Kelvin image (open boundary) triangle `t` belongs to, if any.
+    pub fn kelvin_image(&self, t: usize) -> Option<&crate::kelvin::KelvinMap> {
+        self.images.get(self.image_of[t] as usize)
     }
 
     /// A full dof vector with the fixed values in place and zero elsewhere.
@@ -324,6 +413,27 @@ impl<'p> Assembler<'p> {
                 let mut ul = [0.0; MAX_LOCAL];
                 for a in 0..n_loc {
                     ul[a] = u[d[a] as usize];
+                }
+                if let Some(map) = self.kelvin_image(t) {
+                    let mu_r = match self.problem.region(map.region).map(|p| &p.material) {
+                        Some(crate::material::Material::Linear { mu_r }) => *mu_r,
+                        _ => 1.0,
+                    };
+                    let c = map.image_centre();
+                    let sc = self.problem.length_scale_m;
+                    crate::kelvin::element_system(
+                        &self.triangles[t],
+                        self.problem.order,
+                        self.problem.symmetry,
+                        &self.image_rule,
+                        crate::material::NU0 / mu_r,
+                        [c[0] * sc, c[1] * sc],
+                        map.radius * sc,
+                        &ul[..n_loc],
+                        r,
+                        k,
+                    );
+                    return;
                 }
                 let props = self.region_props(t);
                 let load = ElementLoad {

@@ -11,14 +11,14 @@
 //! flux-normal or periodic, no anti-periodic pair), one dof is pinned to 0,
 //! which changes no flux density.
 //!
-//! **Not implemented yet: the open boundary (Kelvin transformation).** The
-//! plan: mesh an extra disc (the image of the exterior) whose rim nodes
-//! coincide with the outer circle's nodes, tie those pairs like a periodic
-//! pair, and assemble the plain ν0 Laplacian on the disc (planar: the
-//! Laplacian is conformally invariant in 2D, so the mapped exterior needs no
-//! modified coefficient); the axisymmetric exterior needs a modified,
-//! non-conformal form that is still to be derived. Until then a large
-//! zero-potential boundary stands in for an open one.
+//! **The open boundary** ([`EdgeCondition::KelvinRim`], built by
+//! [`crate::kelvin`]): the image disc of the exterior carries its own nodes;
+//! each of its rim dofs (vertices and, for P2, midpoints) is a slave of the
+//! outer circle's dof at the same place (up to the image's offset), exactly
+//! like a periodic pair. In planar problems the node at the image centre (the
+//! image of infinity) is fixed to 0: A(∞) = 0, or, with a net current, the
+//! return path at infinity (see [`crate::kelvin`]). In axisymmetric ones the
+//! image's diameter lies on the axis and is fixed like the axis.
 
 use crate::assembly::DofMap;
 use crate::fe::Symmetry;
@@ -95,6 +95,7 @@ impl Constraints {
             .filter_map(|(_, c)| partner(c))
             .collect();
         let mut pairs = Vec::new();
+        let mut rims = Vec::new();
         for (&segment, edges) in &by_segment {
             let explicit = problem.boundary.segments.iter().any(|(s, _)| *s == segment);
             if partners.contains(&segment) && !explicit {
@@ -125,6 +126,7 @@ impl Constraints {
                 EdgeCondition::FluxNormal => {}
                 EdgeCondition::Periodic { partner } => pairs.push((segment, partner, 1.0)),
                 EdgeCondition::AntiPeriodic { partner } => pairs.push((segment, partner, -1.0)),
+                EdgeCondition::KelvinRim(map) => rims.push((segment, map)),
             }
         }
         if matches!(problem.symmetry, Symmetry::Axisymmetric) {
@@ -136,6 +138,7 @@ impl Constraints {
                 }
             }
         }
+        tie_kelvin_rims(problem, dofs, &by_segment, &rims, &mut raw)?;
         for &(segment, partner, sign) in &pairs {
             let Some(master_edges) = by_segment.get(&partner) else {
                 return Err(SolveError::UnknownSegment { segment: partner });
@@ -172,6 +175,91 @@ impl Constraints {
             };
         }
     }
+}
+
+/// Tie every dof of each image rim to the outer circle's dof at its
+/// position − offset, and (planar) fix the image centre to 0.
+fn tie_kelvin_rims(
+    problem: &Problem<'_>,
+    dofs: &DofMap,
+    by_segment: &BTreeMap<u32, Vec<[u32; 2]>>,
+    rims: &[(u32, crate::kelvin::KelvinMap)],
+    raw: &mut [Raw],
+) -> Result<(), SolveError> {
+    if rims.is_empty() {
+        return Ok(());
+    }
+    let s = problem.length_scale_m;
+    let nodes = &problem.mesh.nodes;
+    let rim_segments: std::collections::HashSet<u32> = rims.iter().map(|r| r.0).collect();
+    // Candidate partners: nodes on the other outer edges, sorted by x.
+    let mut candidates: Vec<(f64, u32)> = by_segment
+        .iter()
+        .filter(|(seg, _)| !rim_segments.contains(seg))
+        .flat_map(|(_, edges)| edges.iter().flatten())
+        .map(|&n| (nodes[n as usize][0], n))
+        .collect();
+    candidates.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+    candidates.dedup_by_key(|c| c.1);
+    for &(segment, map) in rims {
+        let err = |reason: String| SolveError::KelvinImage {
+            region: map.region,
+            reason,
+        };
+        if !(map.radius.is_finite() && map.radius > 0.0) {
+            return Err(err(format!("radius {} is not finite and > 0", map.radius)));
+        }
+        let tol = 1e-9 * (map.radius + map.centre[0].abs().max(map.centre[1].abs()));
+        let partner_of = |n: u32| -> Result<u32, SolveError> {
+            let p = nodes[n as usize];
+            let want = [p[0] - map.offset[0], p[1] - map.offset[1]];
+            let lo = candidates.partition_point(|c| c.0 < want[0] - tol);
+            candidates[lo..]
+                .iter()
+                .take_while(|c| c.0 <= want[0] + tol)
+                .find(|c| (nodes[c.1 as usize][1] - want[1]).abs() <= tol)
+                .map(|c| c.1)
+                .ok_or_else(|| {
+                    err(format!(
+                        "rim node at {p:?} (segment {segment}) has no outer-edge node at {want:?}"
+                    ))
+                })
+        };
+        for &[a, b] in &by_segment[&segment] {
+            let (pa, pb) = (partner_of(a)?, partner_of(b)?);
+            let mut links = vec![(a, pa), (b, pb)];
+            if let Some(e) = dofs.edge_dof(a, b) {
+                let f = dofs.edge_dof(pa, pb).ok_or_else(|| {
+                    err(format!(
+                        "the outer circle has no edge between nodes {pa} and {pb}"
+                    ))
+                })?;
+                links.push((e, f));
+            }
+            for (slave, master) in links {
+                if let Raw::Free = raw[slave as usize] {
+                    raw[slave as usize] = Raw::Link(master, 1.0);
+                }
+            }
+        }
+        if let Symmetry::Planar { .. } = problem.symmetry {
+            let c = map.image_centre();
+            let c = [c[0] * s, c[1] * s];
+            let tol_m = tol * s;
+            let centre = (0..dofs.n_nodes)
+                .find(|&d| {
+                    let p = dofs.coords[d];
+                    (p[0] - c[0]).abs() <= tol_m && (p[1] - c[1]).abs() <= tol_m
+                })
+                .ok_or_else(|| {
+                    err("no mesh node at the image centre (the image of infinity)".into())
+                })?;
+            if let Raw::Free = raw[centre] {
+                raw[centre] = Raw::Fixed(0.0);
+            }
+        }
+    }
+    Ok(())
 }
 
 fn partner(c: &EdgeCondition) -> Option<u32> {

@@ -241,6 +241,32 @@ impl<'p> Solution<'p> {
         locator.locate(&self.assembler, q)
     }
 
+    /// The triangles whose bounding boxes may overlap the box `[lo, hi]`
+    /// (metres), each once, in increasing order (a superset: callers test
+    /// the geometry themselves).
+    pub(crate) fn triangles_near(&self, lo: [f64; 2], hi: [f64; 2]) -> Vec<usize> {
+        let locator = self.locator.get_or_init(|| Locator::new(&self.assembler));
+        let (a, b) = (locator.cell_of(lo), locator.cell_of(hi));
+        let mut out = Vec::new();
+        for j in a[1]..=b[1] {
+            for i in a[0]..=b[0] {
+                let c = j * locator.dims[0] + i;
+                let range = locator.start[c] as usize..locator.start[c + 1] as usize;
+                out.extend(locator.items[range].iter().map(|&t| t as usize));
+            }
+        }
+        out.sort_unstable();
+        out.dedup();
+        out
+    }
+
+    /// The smaller side of a bucket of the point-location grid, m: boxes of
+    /// about this size hold a handful of triangles.
+    pub(crate) fn bucket_size(&self) -> f64 {
+        let locator = self.locator.get_or_init(|| Locator::new(&self.assembler));
+        locator.cell[0].min(locator.cell[1])
+    }
+
     /// The field at point `p` (mesh units), or `None` outside the mesh.
     pub fn probe(&self, p: [f64; 2]) -> Option<PointField> {
         self.locate(p).map(|(t, l)| self.field_in(t, l))

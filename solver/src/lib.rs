@@ -10,6 +10,7 @@ pub mod model;
 pub mod assembly;
 pub mod boundary;
 pub mod fe;
+pub mod kelvin;
 pub mod field;
 pub mod linear;
 pub mod material;

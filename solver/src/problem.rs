@@ -60,6 +60,11 @@ pub enum EdgeCondition {
         /// The partner segment's index.
         partner: u32,
     },
+    /// This segment is the rim of the Kelvin image of the exterior of the
+    /// outer circle (see [`crate::kelvin`]): every dof on it equals the dof
+    /// of the outer circle at its position − `offset`, and the triangles of
+    /// region `region` are the image (air, no current).
+    KelvinRim(crate::kelvin::KelvinMap),
 }
 
 /// Conditions on the outer outline's segments.
@@ -200,6 +205,15 @@ pub enum SolveError {
         /// Its partner.
         partner: u32,
         /// What does not match.
+        reason: String,
+    },
+    /// The Kelvin image of an open boundary does not fit the mesh or the
+    /// regions.
+    #[error("open boundary (Kelvin image of region {region}): {reason}")]
+    KelvinImage {
+        /// The image's region id.
+        region: u32,
+        /// What is wrong.
         reason: String,
     },
     /// The linear solver failed.

@@ -470,9 +470,16 @@ pub fn profile_file(name: &str) -> String {
 pub fn results(model: &Model, mesh: &Mesh, setup: &ProblemSetup, solution: &Solution, seconds: f64) -> SolveResults {
     let report = &solution.report;
     let mut notes = setup.notes.clone();
+    // An open boundary appends the Kelvin image of the exterior (region id
+    // `shapes.len()`) after the model's own triangles and nodes; counts and
+    // probes are of the model alone.
+    let image_region = model.shapes.len() as u32;
+    let model_triangles: Vec<usize> = (0..mesh.triangles.len()).filter(|&t| mesh.regions[t] != image_region).collect();
+    let model_nodes =
+        model_triangles.iter().flat_map(|&t| mesh.triangles[t]).map(|n| n as usize + 1).max().unwrap_or(0);
     let mut probes = BTreeMap::new();
     for p in &model.probes {
-        match solution.probe(p.at) {
+        match solution.probe(p.at).filter(|f| mesh.regions[f.triangle] != image_region) {
             Some(f) => {
                 probes.insert(
                     p.name.clone(),
@@ -552,8 +559,8 @@ pub fn results(model: &Model, mesh: &Mesh, setup: &ProblemSetup, solution: &Solu
         format: "fluxwright-results/1",
         model: ModelInfo { title: model.title.clone(), symmetry: model.symmetry.as_str(), depth_m: model.depth_m() },
         mesh: MeshInfo {
-            nodes: mesh.nodes.len(),
-            triangles: mesh.triangles.len(),
+            nodes: model_nodes,
+            triangles: model_triangles.len(),
             element_order: model.element_order,
             unknowns: report.unknowns,
             min_angle_deg: mesh.quality().min_angle_deg,

@@ -47,10 +47,12 @@
 //! displacement field v (Coulomb, 1983, as above). This is the exact
 //! derivative of the discrete co-energy, valid for any material in the band
 //! as long as it carries no current (nonlinear iron included). In plain air
-//! it reduces to the weighted stress tensor, so in a planar model with the
-//! band in air both methods give the same force up to rounding; they differ
-//! in torques (the rotation is interpolated linearly on each element here),
-//! in axisymmetry, and wherever the band has to cross iron.
+//! it reduces to the weighted stress tensor (the identity
+//! −H·∂B/∂s − w ∂(dV)/∂s/dV = −T:∇v holds pointwise for w = ν0|B|²/2), so
+//! with the band in air both methods give the same force up to rounding,
+//! planar or axisymmetric; torques differ slightly (the virtual rotation is
+//! interpolated linearly on each element here), and only virtual work can
+//! take a band through iron, e.g. for a body in contact with iron.
 //!
 //! # Limits
 //!
