@@ -8,14 +8,22 @@ use fluxwright::solver::{nonlinear, study};
 const MU0: f64 = 4.0e-7 * std::f64::consts::PI;
 
 /// Solve a model given as text and hand the solved pieces to `inspect`.
-fn solve<R>(text: &str, inspect: impl FnOnce(&Model, &fluxwright::solver::field::Solution, &study::SolveResults) -> R) -> R {
-    let model = Model::from_toml_str(text, &ModelSource::new("reference.toml")).expect("valid model");
+fn solve<R>(
+    text: &str,
+    inspect: impl FnOnce(&Model, &fluxwright::solver::field::Solution, &study::SolveResults) -> R,
+) -> R {
+    let model =
+        Model::from_toml_str(text, &ModelSource::new("reference.toml")).expect("valid model");
     let mesh = mesher::mesh(&model.mesh_input()).expect("meshes");
     mesh.check().expect("valid mesh");
     let setup = study::problem(&model, &mesh).expect("problem builds");
     let solution = nonlinear::solve(&setup.problem, &Default::default()).expect("solves");
     let results = study::results(&model, &mesh, &setup, &solution, 0.0);
-    assert!(results.solve.converged, "did not converge: {:?}", results.solve);
+    assert!(
+        results.solve.converged,
+        "did not converge: {:?}",
+        results.solve
+    );
     inspect(&model, &solution, &results)
 }
 
@@ -58,9 +66,24 @@ fn long_round_conductor_follows_amperes_law_inside_and_outside() {
         let inside = MU0 * i * 2.5e-3 / (2.0 * std::f64::consts::PI * a * a);
         let out = |r: f64| MU0 * i / (2.0 * std::f64::consts::PI * r);
         let b = |name: &str| r.probes[name].b_magnitude_t;
-        assert!(relative_error(b("inside"), inside) < 0.01, "inside {} vs {}", b("inside"), inside);
-        assert!(relative_error(b("surface_out"), out(7.5e-3)) < 0.01, "{} vs {}", b("surface_out"), out(7.5e-3));
-        assert!(relative_error(b("far"), out(50e-3)) < 0.01, "{} vs {}", b("far"), out(50e-3));
+        assert!(
+            relative_error(b("inside"), inside) < 0.01,
+            "inside {} vs {}",
+            b("inside"),
+            inside
+        );
+        assert!(
+            relative_error(b("surface_out"), out(7.5e-3)) < 0.01,
+            "{} vs {}",
+            b("surface_out"),
+            out(7.5e-3)
+        );
+        assert!(
+            relative_error(b("far"), out(50e-3)) < 0.01,
+            "{} vs {}",
+            b("far"),
+            out(50e-3)
+        );
         // Direction: +z current circulates B counter-clockwise: at (0, +y)
         // B points along −x (right-hand rule).
         assert!(r.probes["surface_out"].b_t[0] < 0.0);
@@ -101,7 +124,11 @@ fn permeable_cylinder_in_a_uniform_field() {
         let want = 2.0 * mu_r / (mu_r + 1.0) * b0;
         for name in ["centre", "off_centre"] {
             let p = &r.probes[name];
-            assert!(relative_error(p.b_t[0], want) < 0.01, "{name}: Bx {} vs {want}", p.b_t[0]);
+            assert!(
+                relative_error(p.b_t[0], want) < 0.01,
+                "{name}: Bx {} vs {want}",
+                p.b_t[0]
+            );
             assert!(p.b_t[1].abs() < 0.01 * want, "{name}: By {}", p.b_t[1]);
         }
     });
@@ -147,8 +174,16 @@ fn circular_current_ring_on_axis_field() {
         let bz = |z: f64| MU0 * i * a * a / (2.0 * (a * a + z * z).powf(1.5));
         for (name, z) in [("centre", 0.0), ("z10", 10e-3), ("z30", -30e-3)] {
             let got = r.probes[name].b_t[1];
-            assert!(relative_error(got, bz(z)) < 0.01, "{name}: Bz {got} vs {}", bz(z));
-            assert!(r.probes[name].b_t[0].abs() < 0.01 * bz(z), "{name}: Br {}", r.probes[name].b_t[0]);
+            assert!(
+                relative_error(got, bz(z)) < 0.01,
+                "{name}: Bz {got} vs {}",
+                bz(z)
+            );
+            assert!(
+                r.probes[name].b_t[0].abs() < 0.01 * bz(z),
+                "{name}: Br {}",
+                r.probes[name].b_t[0]
+            );
         }
     });
 }
@@ -186,6 +221,9 @@ fn finite_thin_solenoid_centre_field() {
         let want = MU0 * n * i / (l * l + 4.0 * a * a).sqrt();
         let got = r.probes["centre"].b_t[1];
         assert!(relative_error(got, want) < 0.005, "Bz {got} vs {want}");
-        assert!(relative_error(got, MU0 * n * i / l) > 0.01, "finite length must show");
+        assert!(
+            relative_error(got, MU0 * n * i / l) > 0.01,
+            "finite length must show"
+        );
     });
 }

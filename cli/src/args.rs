@@ -62,11 +62,20 @@ pub enum Command {
 fn parse_view(s: &str) -> Result<[f64; 4], String> {
     let v: Vec<f64> = s
         .split(',')
-        .map(|p| p.trim().parse::<f64>().map_err(|_| format!("`{p}` is not a number")))
+        .map(|p| {
+            p.trim()
+                .parse::<f64>()
+                .map_err(|_| format!("`{p}` is not a number"))
+        })
         .collect::<Result<_, _>>()?;
     match v[..] {
-        [x0, y0, x1, y1] if v.iter().all(|x| x.is_finite()) && x0 != x1 && y0 != y1 => Ok([x0, y0, x1, y1]),
+        [x0, y0, x1, y1] if v.iter().all(|x| x.is_finite()) && x0 != x1 && y0 != y1 => {
+            Ok([x0, y0, x1, y1])
+        }
         [_, _, _, _] => Err("the window needs finite numbers with x0 ≠ x1 and y0 ≠ y1".into()),
-        _ => Err(format!("expected four numbers x0,y0,x1,y1, got {}", v.len())),
+        _ => Err(format!(
+            "expected four numbers x0,y0,x1,y1, got {}",
+            v.len()
+        )),
     }
 }

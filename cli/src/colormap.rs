@@ -6,7 +6,11 @@
 
 /// Colour for `t` in [0, 1] as sRGB bytes.
 pub fn flux_scale(t: f64) -> (u8, u8, u8) {
-    let t = if t.is_finite() { t.clamp(0.0, 1.0) } else { 0.0 };
+    let t = if t.is_finite() {
+        t.clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
     let lightness = 97.0 - 68.0 * t;
     let chroma = 4.0 + 44.0 * (0.9 * std::f64::consts::PI * t).sin().powf(0.7);
     let hue = (95.0 + 190.0 * t).to_radians();
@@ -19,14 +23,24 @@ fn lab_to_srgb(l: f64, a: f64, b: f64) -> (u8, u8, u8) {
     let fy = (l + 16.0) / 116.0;
     let fx = fy + a / 500.0;
     let fz = fy - b / 200.0;
-    let inv = |f: f64| if f > 6.0 / 29.0 { f * f * f } else { 3.0 * (6.0f64 / 29.0).powi(2) * (f - 4.0 / 29.0) };
+    let inv = |f: f64| {
+        if f > 6.0 / 29.0 {
+            f * f * f
+        } else {
+            3.0 * (6.0f64 / 29.0).powi(2) * (f - 4.0 / 29.0)
+        }
+    };
     let (x, y, z) = (0.95047 * inv(fx), inv(fy), 1.08883 * inv(fz));
     let r = 3.2406 * x - 1.5372 * y - 0.4986 * z;
     let g = -0.9689 * x + 1.8758 * y + 0.0415 * z;
     let bl = 0.0557 * x - 0.2040 * y + 1.0570 * z;
     let gamma = |c: f64| {
         let c = c.clamp(0.0, 1.0);
-        let v = if c <= 0.0031308 { 12.92 * c } else { 1.055 * c.powf(1.0 / 2.4) - 0.055 };
+        let v = if c <= 0.0031308 {
+            12.92 * c
+        } else {
+            1.055 * c.powf(1.0 / 2.4) - 0.055
+        };
         (v * 255.0).round() as u8
     };
     (gamma(r), gamma(g), gamma(bl))
@@ -40,7 +54,11 @@ mod tests {
     fn luminance((r, g, b): (u8, u8, u8)) -> f64 {
         let lin = |c: u8| {
             let c = c as f64 / 255.0;
-            if c <= 0.04045 { c / 12.92 } else { ((c + 0.055) / 1.055).powf(2.4) }
+            if c <= 0.04045 {
+                c / 12.92
+            } else {
+                ((c + 0.055) / 1.055).powf(2.4)
+            }
         };
         0.2126 * lin(r) + 0.7152 * lin(g) + 0.0722 * lin(b)
     }

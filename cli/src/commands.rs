@@ -48,7 +48,11 @@ fn load_model(path: &Path) -> Result<Model> {
     parse_model(&text, &name, &loader)
 }
 
-fn parse_model(text: &str, name: &str, loader: &dyn fluxwright_solver::model::FileLoader) -> Result<Model> {
+fn parse_model(
+    text: &str,
+    name: &str,
+    loader: &dyn fluxwright_solver::model::FileLoader,
+) -> Result<Model> {
     match Model::from_toml_str_with_files(text, &ModelSource::new(name), loader) {
         Ok(model) => {
             for w in &model.warnings {
@@ -80,26 +84,64 @@ fn print_summary(model: &Model) {
     let unit = s.length_unit;
     println!("{}", s.title);
     match s.depth_m {
-        Some(d) => println!("  {} , depth {} m, lengths in {unit}, element order {}", s.symmetry, d, s.element_order),
-        None => println!("  {} (full turn), lengths in {unit}, element order {}", s.symmetry, s.element_order),
+        Some(d) => println!(
+            "  {} , depth {} m, lengths in {unit}, element order {}",
+            s.symmetry, d, s.element_order
+        ),
+        None => println!(
+            "  {} (full turn), lengths in {unit}, element order {}",
+            s.symmetry, s.element_order
+        ),
     }
     println!("  outer: {}", s.outer);
-    let mut rows = vec![["shape".to_string(), "outline".into(), "material".into(), "source".into(), format!("area ({unit}²)")]];
+    let mut rows = vec![[
+        "shape".to_string(),
+        "outline".into(),
+        "material".into(),
+        "source".into(),
+        format!("area ({unit}²)"),
+    ]];
     for r in &s.shapes {
-        rows.push([r.name.clone(), r.outline.into(), r.material.clone(), r.source.clone(), format!("{:.4}", r.area)]);
+        rows.push([
+            r.name.clone(),
+            r.outline.into(),
+            r.material.clone(),
+            r.source.clone(),
+            format!("{:.4}", r.area),
+        ]);
     }
     println!();
     print_table(&rows);
-    let mut rows = vec![["material".to_string(), "law".into(), "stacking".into(), "used by".into()]];
+    let mut rows = vec![[
+        "material".to_string(),
+        "law".into(),
+        "stacking".into(),
+        "used by".into(),
+    ]];
     for r in &s.materials {
-        rows.push([r.name.clone(), r.kind.clone(), format!("{}", r.stacking_factor), r.shapes.join(", ")]);
+        rows.push([
+            r.name.clone(),
+            r.kind.clone(),
+            format!("{}", r.stacking_factor),
+            r.shapes.join(", "),
+        ]);
     }
     println!();
     print_table(&rows);
     if !s.windings.is_empty() {
-        let mut rows = vec![["winding".to_string(), "turns".into(), "current (A)".into(), "shapes".into()]];
+        let mut rows = vec![[
+            "winding".to_string(),
+            "turns".into(),
+            "current (A)".into(),
+            "shapes".into(),
+        ]];
         for r in &s.windings {
-            rows.push([r.name.clone(), format!("{}", r.turns), format!("{}", r.current_a), r.shapes.join(", ")]);
+            rows.push([
+                r.name.clone(),
+                format!("{}", r.turns),
+                format!("{}", r.current_a),
+                r.shapes.join(", "),
+            ]);
         }
         println!();
         print_table(&rows);
@@ -148,8 +190,12 @@ fn build_mesh(model: &Model) -> Result<(Mesh, f64)> {
     let start = Instant::now();
     let mesh = fluxwright_mesher::mesh(&model.mesh_input())
         .map_err(|e| Failure::input(format!("{}: meshing failed: {e}", model.source)))?;
-    mesh.check()
-        .with_context(|| format!("{}: the mesh failed its own checks (a bug; please report it)", model.source))?;
+    mesh.check().with_context(|| {
+        format!(
+            "{}: the mesh failed its own checks (a bug; please report it)",
+            model.source
+        )
+    })?;
     Ok((mesh, start.elapsed().as_secs_f64()))
 }
 
@@ -194,12 +240,18 @@ fn write_mesh_files(model: &Model, mesh: &Mesh, seconds: f64, staging: &mut Stag
     for (region, area) in mesh.region_areas() {
         shapes.insert(
             region_name(model, region),
-            ShapeMeshReport { triangles: counts.get(&region).copied().unwrap_or(0), area },
+            ShapeMeshReport {
+                triangles: counts.get(&region).copied().unwrap_or(0),
+                area,
+            },
         );
     }
     // Shapes covered entirely by later ones still appear, with nothing left.
     for s in &model.shapes {
-        shapes.entry(s.name.clone()).or_insert(ShapeMeshReport { triangles: 0, area: 0.0 });
+        shapes.entry(s.name.clone()).or_insert(ShapeMeshReport {
+            triangles: 0,
+            area: 0.0,
+        });
     }
     let report = MeshReport {
         format: "fluxwright-mesh/1",
@@ -210,21 +262,41 @@ fn write_mesh_files(model: &Model, mesh: &Mesh, seconds: f64, staging: &mut Stag
         shapes,
     };
 
-    let shape_index: Vec<i32> =
-        mesh.regions.iter().map(|&r| if r == Mesh::OUTER_REGION { -1 } else { r as i32 }).collect();
+    let shape_index: Vec<i32> = mesh
+        .regions
+        .iter()
+        .map(|&r| {
+            if r == Mesh::OUTER_REGION {
+                -1
+            } else {
+                r as i32
+            }
+        })
+        .collect();
     let min_angle: Vec<f64> = (0..mesh.triangles.len())
-        .map(|t| mesh.triangle_angles(t).into_iter().fold(f64::INFINITY, f64::min).to_degrees())
+        .map(|t| {
+            mesh.triangle_angles(t)
+                .into_iter()
+                .fold(f64::INFINITY, f64::min)
+                .to_degrees()
+        })
         .collect();
     let doc = vtu::render(
         &mesh.nodes,
         vtu::Cells::Triangles(&mesh.triangles),
         &[],
-        &[vtu::Array::Int("shape", shape_index), vtu::Array::Scalar("min_angle_deg", min_angle)],
+        &[
+            vtu::Array::Int("shape", shape_index),
+            vtu::Array::Scalar("min_angle_deg", min_angle),
+        ],
     );
     staging.write("mesh.vtu", doc.as_bytes())?;
 
     // Regions for the picture: the outer region first, then each shape.
-    let mut styles = vec![RegionStyle { label: "outer (air)".into(), is_air: true }];
+    let mut styles = vec![RegionStyle {
+        label: "outer (air)".into(),
+        is_air: true,
+    }];
     for s in &model.shapes {
         let material = &model.materials[s.material];
         styles.push(RegionStyle {
@@ -232,8 +304,17 @@ fn write_mesh_files(model: &Model, mesh: &Mesh, seconds: f64, staging: &mut Stag
             is_air: s.material == 0,
         });
     }
-    let region_of: Vec<usize> =
-        mesh.regions.iter().map(|&r| if r == Mesh::OUTER_REGION { 0 } else { r as usize + 1 }).collect();
+    let region_of: Vec<usize> = mesh
+        .regions
+        .iter()
+        .map(|&r| {
+            if r == Mesh::OUTER_REGION {
+                0
+            } else {
+                r as usize + 1
+            }
+        })
+        .collect();
     let title = format!("{}: mesh", model.title);
     let png = staging.path("mesh.png")?;
     plot::mesh_png(
@@ -247,7 +328,10 @@ fn write_mesh_files(model: &Model, mesh: &Mesh, seconds: f64, staging: &mut Stag
             regions: &styles,
         },
     )?;
-    staging.write("mesh.json", serde_json::to_string_pretty(&report)?.as_bytes())?;
+    staging.write(
+        "mesh.json",
+        serde_json::to_string_pretty(&report)?.as_bytes(),
+    )?;
     Ok(())
 }
 
@@ -257,8 +341,13 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
     println!("  An invented scenario: a fire door's hold-open magnet. A 600-turn coil at 0.4 A");
     println!("  magnetises an E-shaped steel core; a steel armature plate sits 0.3 mm away.\n");
     if let Some(path) = save_model {
-        std::fs::write(path, DEMO_MODEL).with_context(|| format!("cannot write {}", path.display()))?;
-        println!("  model saved to {} (edit it, then: fluxwright solve {} -o OUT)\n", path.display(), path.display());
+        std::fs::write(path, DEMO_MODEL)
+            .with_context(|| format!("cannot write {}", path.display()))?;
+        println!(
+            "  model saved to {} (edit it, then: fluxwright solve {} -o OUT)\n",
+            path.display(),
+            path.display()
+        );
     }
     print_summary(&model);
     println!();
@@ -268,14 +357,24 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
     println!("  stored energy  the magnetic energy in the device and the air around it, for its 60 mm depth;");
     println!("                 with a linear core it would equal L·I²/2 of the coil");
     println!("  co-energy      the energy's twin from ∫B·dH; it exceeds the energy once the steel saturates");
-    println!("  probe          the flux density in the middle of the 0.3 mm gap under the centre leg; a");
+    println!(
+        "  probe          the flux density in the middle of the 0.3 mm gap under the centre leg; a"
+    );
     println!("                 hand estimate with ideal steel and no fringing, μ0·N·I/(g·(1 + 15/20)), gives 0.57 T");
     println!("  winding        flux linkage λ of the 600 turns; inductance λ/I; incremental dλ/dI from the");
-    println!("                 tangent at this current (below λ/I once the steel starts to saturate)");
-    println!("  force          the pull on the armature (negative y: towards the core) by the weighted");
+    println!(
+        "                 tangent at this current (below λ/I once the steel starts to saturate)"
+    );
+    println!(
+        "  force          the pull on the armature (negative y: towards the core) by the weighted"
+    );
     println!("                 Maxwell stress tensor; B²A/2μ0 over the three pole faces gives about 195 N");
-    println!("  loop           Ampère's law: ∮H·dl around a path through steel, gap and armature equals");
-    println!("                 the 240 A-turns of the coil side it encloses; the mismatch says how well");
+    println!(
+        "  loop           Ampère's law: ∮H·dl around a path through steel, gap and armature equals"
+    );
+    println!(
+        "                 the 240 A-turns of the coil side it encloses; the mismatch says how well"
+    );
     println!("  profile        B along a line through the gap, as CSV and a plot under profiles/");
     println!("  Newton steps   iterations of the nonlinear solve for the saturating steel, to a 1e-8 residual");
     println!("Open fields.vtu in ParaView to see |B|, B, H and μr per triangle.");
@@ -286,16 +385,27 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
 /// Newton did not converge (the results are still written, marked).
 fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
     let start = Instant::now();
-    let mm = study::mesh_for(model).map_err(|e| Failure::input(format!("{}: meshing failed: {e}", model.source)))?;
-    mm.mesh
-        .check()
-        .with_context(|| format!("{}: the mesh failed its own checks (a bug; please report it)", model.source))?;
+    let mm = study::mesh_for(model)
+        .map_err(|e| Failure::input(format!("{}: meshing failed: {e}", model.source)))?;
+    mm.mesh.check().with_context(|| {
+        format!(
+            "{}: the mesh failed its own checks (a bug; please report it)",
+            model.source
+        )
+    })?;
     let mesh_seconds = start.elapsed().as_secs_f64();
     let model_mesh = model_part(&mm);
-    let setup = study::problem(model, &mm.mesh).map_err(|e| Failure::input(format!("{}: {e}", model.source)))?;
+    let setup = study::problem(model, &mm.mesh)
+        .map_err(|e| Failure::input(format!("{}: {e}", model.source)))?;
     let solution = nonlinear::solve(&setup.problem, &Default::default())
         .map_err(|e| Failure::input(format!("{}: the solve failed: {e}", model.source)))?;
-    let results = study::results(model, &mm.mesh, &setup, &solution, start.elapsed().as_secs_f64());
+    let results = study::results(
+        model,
+        &mm.mesh,
+        &setup,
+        &solution,
+        start.elapsed().as_secs_f64(),
+    );
 
     let mut staging = Staging::new(out)?;
     write_mesh_files(model, &model_mesh, mesh_seconds, &mut staging)?;
@@ -303,19 +413,40 @@ fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
     // exterior that an open boundary appends to the mesh.
     let n_tri = model_mesh.triangles.len();
     let fields = &solution.element_fields()[..n_tri];
-    let shape_index: Vec<i32> =
-        model_mesh.regions.iter().map(|&r| if r == Mesh::OUTER_REGION { -1 } else { r as i32 }).collect();
+    let shape_index: Vec<i32> = model_mesh
+        .regions
+        .iter()
+        .map(|&r| {
+            if r == Mesh::OUTER_REGION {
+                -1
+            } else {
+                r as i32
+            }
+        })
+        .collect();
     let view_dofs = ViewDofs::new(&solution, n_tri, model.unit_to_m());
-    let potential: Vec<f64> = view_dofs.kept.iter().map(|&d| solution.potential()[d as usize]).collect();
+    let potential: Vec<f64> = view_dofs
+        .kept
+        .iter()
+        .map(|&d| solution.potential()[d as usize])
+        .collect();
     // Quadratic elements are written as VTK quadratic triangles, whose
     // node order (corners, then mid-edges 0-1, 1-2, 2-0) is our dof order.
     let quadratic: Vec<[u32; 6]>;
     let linear: Vec<[u32; 3]>;
     let cells = if view_dofs.per_element == 6 {
-        quadratic = view_dofs.elements.chunks_exact(6).map(|c| [c[0], c[1], c[2], c[3], c[4], c[5]]).collect();
+        quadratic = view_dofs
+            .elements
+            .chunks_exact(6)
+            .map(|c| [c[0], c[1], c[2], c[3], c[4], c[5]])
+            .collect();
         vtu::Cells::QuadraticTriangles(&quadratic)
     } else {
-        linear = view_dofs.elements.chunks_exact(3).map(|c| [c[0], c[1], c[2]]).collect();
+        linear = view_dofs
+            .elements
+            .chunks_exact(3)
+            .map(|c| [c[0], c[1], c[2]])
+            .collect();
         vtu::Cells::Triangles(&linear)
     };
     let doc = vtu::render(
@@ -325,24 +456,50 @@ fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
         &[
             vtu::Array::Vector2("B", fields.iter().map(|f| f.b).collect()),
             vtu::Array::Vector2("H", fields.iter().map(|f| f.h).collect()),
-            vtu::Array::Scalar("B_magnitude", fields.iter().map(|f| f.b_magnitude).collect()),
+            vtu::Array::Scalar(
+                "B_magnitude",
+                fields.iter().map(|f| f.b_magnitude).collect(),
+            ),
             vtu::Array::Scalar("mu_r", fields.iter().map(|f| f.mu_r).collect()),
             vtu::Array::Int("shape", shape_index),
         ],
     );
     staging.write("fields.vtu", doc.as_bytes())?;
-    write_field_map(model, &model_mesh, &solution, &view_dofs, view, &mut staging)?;
+    write_field_map(
+        model,
+        &model_mesh,
+        &solution,
+        &view_dofs,
+        view,
+        &mut staging,
+    )?;
     for (name, samples) in study::profile_samples(model, &solution) {
         let file = study::profile_file(&name);
-        staging.write(&file, fluxwright_solver::post::profiles::profile_csv(&samples).as_bytes())?;
+        staging.write(
+            &file,
+            fluxwright_solver::post::profiles::profile_csv(&samples).as_bytes(),
+        )?;
         let points: Vec<plot::ProfilePoint> = samples
             .iter()
-            .map(|s| (s.position, s.field.as_ref().map(|f| [f.b[0], f.b[1], f.b_magnitude])))
+            .map(|s| {
+                (
+                    s.position,
+                    s.field.as_ref().map(|f| [f.b[0], f.b[1], f.b_magnitude]),
+                )
+            })
             .collect();
         let png = staging.path(&file.replace(".csv", ".png"))?;
-        plot::profile_png(&png, &format!("{}: profile {name}", model.title), model.length_unit.as_str(), &points)?;
+        plot::profile_png(
+            &png,
+            &format!("{}: profile {name}", model.title),
+            model.length_unit.as_str(),
+            &points,
+        )?;
     }
-    staging.write("results.json", serde_json::to_string_pretty(&results)?.as_bytes())?;
+    staging.write(
+        "results.json",
+        serde_json::to_string_pretty(&results)?.as_bytes(),
+    )?;
     staging.commit()?;
 
     print_results(model, &results);
@@ -365,7 +522,13 @@ fn model_part(mm: &study::ModelMesh) -> Mesh {
         nodes: mm.mesh.nodes[..mm.model_nodes].to_vec(),
         triangles: mm.mesh.triangles[..mm.model_triangles].to_vec(),
         regions: mm.mesh.regions[..mm.model_triangles].to_vec(),
-        boundary: mm.mesh.boundary.iter().filter(|e| e.nodes[0] < n && e.nodes[1] < n).copied().collect(),
+        boundary: mm
+            .mesh
+            .boundary
+            .iter()
+            .filter(|e| e.nodes[0] < n && e.nodes[1] < n)
+            .copied()
+            .collect(),
         report: mm.mesh.report.clone(),
     }
 }
@@ -384,7 +547,11 @@ struct ViewDofs {
 }
 
 impl ViewDofs {
-    fn new(solution: &fluxwright_solver::field::Solution, n_tri: usize, unit_to_m: f64) -> ViewDofs {
+    fn new(
+        solution: &fluxwright_solver::field::Solution,
+        n_tri: usize,
+        unit_to_m: f64,
+    ) -> ViewDofs {
         let dofs = solution.dofs();
         let total = solution.assembler().problem().mesh.triangles.len().max(1);
         let per_element = dofs.element_dofs.len() / total;
@@ -400,8 +567,16 @@ impl ViewDofs {
                 index[d as usize]
             })
             .collect();
-        let points = kept.iter().map(|&d| dofs.coords[d as usize].map(|c| c / unit_to_m)).collect();
-        ViewDofs { per_element, kept, points, elements }
+        let points = kept
+            .iter()
+            .map(|&d| dofs.coords[d as usize].map(|c| c / unit_to_m))
+            .collect();
+        ViewDofs {
+            per_element,
+            kept,
+            points,
+            elements,
+        }
     }
 }
 
@@ -417,7 +592,11 @@ fn print_results(model: &Model, r: &study::SolveResults) {
         r.solve.relative_residual,
         r.solve.seconds
     );
-    let per = if r.model.depth_m.is_some() { "for the model depth" } else { "for the full turn" };
+    let per = if r.model.depth_m.is_some() {
+        "for the model depth"
+    } else {
+        "for the full turn"
+    };
     println!("  stored energy   {:.6e} J ({per})", r.energy_j);
     println!("  co-energy       {:.6e} J", r.coenergy_j);
     for (name, p) in &r.probes {
@@ -427,14 +606,20 @@ fn print_results(model: &Model, r: &study::SolveResults) {
         );
     }
     for (name, w) in &r.windings {
-        let secant = w.inductance_h.map(|l| format!("{l:.6e} H")).unwrap_or_else(|| "— (no current)".into());
+        let secant = w
+            .inductance_h
+            .map(|l| format!("{l:.6e} H"))
+            .unwrap_or_else(|| "— (no current)".into());
         println!(
             "  winding {name}: {} turns × {} A, flux linkage {:.6e} Wb, inductance {secant}, incremental {:.6e} H",
             w.turns, w.current_a, w.flux_linkage_wb, w.incremental_inductance_h
         );
     }
     for (name, f) in &r.forces {
-        println!("  force {name}: ({:.6e}, {:.6e}) N by the {}", f.force_n[0], f.force_n[1], f.method);
+        println!(
+            "  force {name}: ({:.6e}, {:.6e}) N by the {}",
+            f.force_n[0], f.force_n[1], f.method
+        );
     }
     for (name, t) in &r.torques {
         println!("  torque {name}: {:.6e} N·m", t.torque_n_m);
@@ -487,7 +672,11 @@ fn write_field_map(
         }
     }
     let all_flux = study::flux_function(solution);
-    let flux: Vec<f64> = view_dofs.kept.iter().map(|&d| all_flux[d as usize]).collect();
+    let flux: Vec<f64> = view_dofs
+        .kept
+        .iter()
+        .map(|&d| all_flux[d as usize])
+        .collect();
     let outlines = region_outlines(mesh);
     let title = format!("{}: |B| and flux lines", model.title);
     let (png, svg) = (staging.path("field.png")?, staging.path("field.svg")?);

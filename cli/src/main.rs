@@ -27,7 +27,10 @@ pub struct Failure {
 impl Failure {
     /// A bad-input failure (exit code 1).
     pub fn input(message: impl Into<String>) -> Failure {
-        Failure { code: 1, message: message.into() }
+        Failure {
+            code: 1,
+            message: message.into(),
+        }
     }
 }
 

@@ -26,7 +26,12 @@ impl Staging {
         }
         std::fs::create_dir_all(&tmp)
             .with_context(|| format!("cannot write into output directory {}", out.display()))?;
-        Ok(Staging { out: out.to_path_buf(), tmp, files: Vec::new(), committed: false })
+        Ok(Staging {
+            out: out.to_path_buf(),
+            tmp,
+            files: Vec::new(),
+            committed: false,
+        })
     }
 
     /// The staging path of output file `name` (may contain `/`), for writers

@@ -81,7 +81,9 @@ pub fn mesh_png(path: &Path, pic: &MeshPicture) -> Result<()> {
     let plot_w = 1100u32;
     let aspect = ((hi[1] - lo[1]) / (hi[0] - lo[0]).max(f64::MIN_POSITIVE)).clamp(0.2, 5.0);
     let plot_h = ((plot_w as f64 - 90.0) * aspect + 110.0).round() as u32;
-    let height = plot_h.max(40 + 26 * pic.regions.len() as u32 + 40).min(6000);
+    let height = plot_h
+        .max(40 + 26 * pic.regions.len() as u32 + 40)
+        .min(6000);
     let root = BitMapBackend::new(path, (plot_w + legend_w, height)).into_drawing_area();
     root.fill(&WHITE).map_err(plot_err)?;
     let (left, right) = root.split_horizontally(plot_w);
@@ -102,7 +104,9 @@ pub fn mesh_png(path: &Path, pic: &MeshPicture) -> Result<()> {
         .axis_desc_style((FONT, 17))
         .draw()
         .map_err(plot_err)?;
-    let colours: Vec<RGBColor> = (0..pic.regions.len()).map(|i| region_colour(pic.regions, i)).collect();
+    let colours: Vec<RGBColor> = (0..pic.regions.len())
+        .map(|i| region_colour(pic.regions, i))
+        .collect();
     let pt = |i: u32| {
         let p = pic.nodes[i as usize];
         (p[0], p[1])
@@ -120,43 +124,77 @@ pub fn mesh_png(path: &Path, pic: &MeshPicture) -> Result<()> {
         },
         (255, 255, 255),
     );
-    chart.draw_series(std::iter::once(image_element((x0, y1), shading)?)).map_err(plot_err)?;
+    chart
+        .draw_series(std::iter::once(image_element((x0, y1), shading)?))
+        .map_err(plot_err)?;
     // Edges only while they can still be told apart at this resolution.
     if pic.triangles.len() <= 150_000 {
-        let alpha = if pic.triangles.len() > 20_000 { 0.25 } else { 0.55 };
+        let alpha = if pic.triangles.len() > 20_000 {
+            0.25
+        } else {
+            0.55
+        };
         chart
             .draw_series(pic.triangles.iter().map(|t| {
-                PathElement::new(vec![pt(t[0]), pt(t[1]), pt(t[2]), pt(t[0])], EDGE.mix(alpha).stroke_width(1))
+                PathElement::new(
+                    vec![pt(t[0]), pt(t[1]), pt(t[2]), pt(t[0])],
+                    EDGE.mix(alpha).stroke_width(1),
+                )
             }))
             .map_err(plot_err)?;
     }
     let mut y = 50;
     right
-        .draw(&Text::new("Shapes", (10, 20), (FONT, 19).into_font().color(&BLACK)))
+        .draw(&Text::new(
+            "Shapes",
+            (10, 20),
+            (FONT, 19).into_font().color(&BLACK),
+        ))
         .map_err(plot_err)?;
     for (i, r) in pic.regions.iter().enumerate() {
         right
-            .draw(&Rectangle::new([(10, y), (32, y + 18)], colours[i].filled()))
+            .draw(&Rectangle::new(
+                [(10, y), (32, y + 18)],
+                colours[i].filled(),
+            ))
             .map_err(plot_err)?;
         right
-            .draw(&Rectangle::new([(10, y), (32, y + 18)], EDGE.stroke_width(1)))
+            .draw(&Rectangle::new(
+                [(10, y), (32, y + 18)],
+                EDGE.stroke_width(1),
+            ))
             .map_err(plot_err)?;
         let label: String = r.label.chars().take(28).collect();
         right
-            .draw(&Text::new(label, (40, y + 1), (FONT, 16).into_font().color(&BLACK)))
+            .draw(&Text::new(
+                label,
+                (40, y + 1),
+                (FONT, 16).into_font().color(&BLACK),
+            ))
             .map_err(plot_err)?;
         y += 26;
     }
-    let footer = format!("{} triangles, {} nodes", pic.triangles.len(), pic.nodes.len());
+    let footer = format!(
+        "{} triangles, {} nodes",
+        pic.triangles.len(),
+        pic.nodes.len()
+    );
     right
-        .draw(&Text::new(footer, (10, height as i32 - 30), (FONT, 14).into_font().color(&EDGE)))
+        .draw(&Text::new(
+            footer,
+            (10, height as i32 - 30),
+            (FONT, 14).into_font().color(&EDGE),
+        ))
         .map_err(plot_err)?;
     root.present().map_err(plot_err)?;
     Ok(())
 }
 
 /// A raster placed with its top-left corner at `top_left` (data coordinates).
-fn image_element(top_left: (f64, f64), r: crate::raster::Raster) -> Result<BitMapElement<'static, (f64, f64)>> {
+fn image_element(
+    top_left: (f64, f64),
+    r: crate::raster::Raster,
+) -> Result<BitMapElement<'static, (f64, f64)>> {
     BitMapElement::with_owned_buffer(top_left, (r.width, r.height), r.rgb)
         .ok_or_else(|| anyhow!("the shaded image does not fit its buffer"))
 }
@@ -190,7 +228,12 @@ pub(crate) fn bounds(nodes: &[[f64; 2]]) -> ([f64; 2], [f64; 2]) {
 pub(crate) fn equal_aspect(lo: [f64; 2], hi: [f64; 2], w: f64, h: f64) -> (f64, f64, f64, f64) {
     let (cx, cy) = (0.5 * (lo[0] + hi[0]), 0.5 * (lo[1] + hi[1]));
     let scale = ((hi[0] - lo[0]) / w).max((hi[1] - lo[1]) / h) * 1.02;
-    (cx - 0.5 * w * scale, cx + 0.5 * w * scale, cy - 0.5 * h * scale, cy + 0.5 * h * scale)
+    (
+        cx - 0.5 * w * scale,
+        cx + 0.5 * w * scale,
+        cy - 0.5 * h * scale,
+        cy + 0.5 * h * scale,
+    )
 }
 
 /// Everything needed to draw a field map: |B| shading, flux lines, outlines.
@@ -226,7 +269,12 @@ pub fn field_map(png: &Path, svg: &Path, pic: &FieldPicture) -> Result<()> {
     let aspect = ((hi[1] - lo[1]) / (hi[0] - lo[0]).max(f64::MIN_POSITIVE)).clamp(0.25, 4.0);
     let height = (((plot_w as f64 - 90.0) * aspect + 110.0).round() as u32).clamp(420, 4400);
     let size = (plot_w + 190, height);
-    draw_field(BitMapBackend::new(png, size).into_drawing_area(), pic, lo, hi)?;
+    draw_field(
+        BitMapBackend::new(png, size).into_drawing_area(),
+        pic,
+        lo,
+        hi,
+    )?;
     draw_field(SVGBackend::new(svg, size).into_drawing_area(), pic, lo, hi)?;
     Ok(())
 }
@@ -246,11 +294,19 @@ where
     let (x0, x1, y0, y1) = equal_aspect(lo, hi, (w - 190 - 90) as f64, (h - 110) as f64);
     let visible = |c: &[u32; 3]| {
         let ps = c.map(|i| pic.points[i as usize]);
-        let (mx, my) = (ps.iter().map(|p| p[0]).fold(f64::INFINITY, f64::min), ps.iter().map(|p| p[1]).fold(f64::INFINITY, f64::min));
-        let (nx, ny) = (ps.iter().map(|p| p[0]).fold(f64::NEG_INFINITY, f64::max), ps.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max));
+        let (mx, my) = (
+            ps.iter().map(|p| p[0]).fold(f64::INFINITY, f64::min),
+            ps.iter().map(|p| p[1]).fold(f64::INFINITY, f64::min),
+        );
+        let (nx, ny) = (
+            ps.iter().map(|p| p[0]).fold(f64::NEG_INFINITY, f64::max),
+            ps.iter().map(|p| p[1]).fold(f64::NEG_INFINITY, f64::max),
+        );
         nx >= x0 && mx <= x1 && ny >= y0 && my <= y1
     };
-    let shown: Vec<usize> = (0..pic.cells.len()).filter(|&c| visible(&pic.cells[c])).collect();
+    let shown: Vec<usize> = (0..pic.cells.len())
+        .filter(|&c| visible(&pic.cells[c]))
+        .collect();
     let top = scale_top(shown.iter().map(|&c| pic.cell_values[c]).collect());
     let mut chart = ChartBuilder::on(&left)
         .caption(pic.title, (FONT, 24))
@@ -278,10 +334,17 @@ where
         |c| crate::colormap::flux_scale(pic.cell_values[c] / top),
         (255, 255, 255),
     );
-    chart.draw_series(std::iter::once(image_element((x0, y1), shading)?)).map_err(plot_err)?;
+    chart
+        .draw_series(std::iter::once(image_element((x0, y1), shading)?))
+        .map_err(plot_err)?;
     // Flux lines: contours of the flux function at equal steps, so that the
     // same flux flows between any two neighbouring lines.
-    let (fmin, fmax) = pic.flux.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| (a.min(v), b.max(v)));
+    let (fmin, fmax) = pic
+        .flux
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &v| {
+            (a.min(v), b.max(v))
+        });
     if fmax > fmin && pic.flux_lines > 0 {
         let step = (fmax - fmin) / pic.flux_lines as f64;
         let mut segments = Vec::new();
@@ -289,12 +352,20 @@ where
             contour_cell(pic, pic.cells[c], fmin, step, &mut segments);
         }
         chart
-            .draw_series(segments.iter().map(|s| PathElement::new(vec![s[0], s[1]], RGBColor(24, 24, 28).mix(0.8).stroke_width(1))))
+            .draw_series(segments.iter().map(|s| {
+                PathElement::new(
+                    vec![s[0], s[1]],
+                    RGBColor(24, 24, 28).mix(0.8).stroke_width(1),
+                )
+            }))
             .map_err(plot_err)?;
     }
     chart
         .draw_series(pic.outlines.iter().map(|s| {
-            PathElement::new(vec![(s[0][0], s[0][1]), (s[1][0], s[1][1])], RGBColor(180, 40, 40).stroke_width(1))
+            PathElement::new(
+                vec![(s[0][0], s[0][1]), (s[1][0], s[1][1])],
+                RGBColor(180, 40, 40).stroke_width(1),
+            )
         }))
         .map_err(plot_err)?;
     colour_bar(&right, top, h)?;
@@ -312,10 +383,20 @@ fn scale_top(mut values: Vec<f64>) -> f64 {
     values.sort_by(f64::total_cmp);
     let k = ((values.len() as f64 - 1.0) * 0.995).round() as usize;
     let top = values[k];
-    if top > 0.0 { top } else { values[values.len() - 1].max(1e-12) }
+    if top > 0.0 {
+        top
+    } else {
+        values[values.len() - 1].max(1e-12)
+    }
 }
 
-fn contour_cell(pic: &FieldPicture, c: [u32; 3], fmin: f64, step: f64, out: &mut Vec<[(f64, f64); 2]>) {
+fn contour_cell(
+    pic: &FieldPicture,
+    c: [u32; 3],
+    fmin: f64,
+    step: f64,
+    out: &mut Vec<[(f64, f64); 2]>,
+) {
     let f = c.map(|i| pic.flux[i as usize]);
     let p = c.map(|i| pic.points[i as usize]);
     let lo = f.iter().copied().fold(f64::INFINITY, f64::min);
@@ -331,7 +412,10 @@ fn contour_cell(pic: &FieldPicture, c: [u32; 3], fmin: f64, step: f64, out: &mut
             let (a, b) = (e, (e + 1) % 3);
             if (f[a] < level) != (f[b] < level) {
                 let s = (level - f[a]) / (f[b] - f[a]);
-                pts.push((p[a][0] + s * (p[b][0] - p[a][0]), p[a][1] + s * (p[b][1] - p[a][1])));
+                pts.push((
+                    p[a][0] + s * (p[b][0] - p[a][0]),
+                    p[a][1] + s * (p[b][1] - p[a][1]),
+                ));
             }
         }
         if pts.len() == 2 {
@@ -340,30 +424,51 @@ fn contour_cell(pic: &FieldPicture, c: [u32; 3], fmin: f64, step: f64, out: &mut
     }
 }
 
-fn colour_bar<DB: DrawingBackend>(area: &DrawingArea<DB, plotters::coord::Shift>, top: f64, h: u32) -> Result<()>
+fn colour_bar<DB: DrawingBackend>(
+    area: &DrawingArea<DB, plotters::coord::Shift>,
+    top: f64,
+    h: u32,
+) -> Result<()>
 where
     DB::ErrorType: 'static,
 {
     let (bar_x, bar_w) = (24i32, 28i32);
     let (bar_top, bar_bottom) = (70i32, h as i32 - 80);
-    area.draw(&Text::new("|B| (T)", (bar_x - 4, 40), (FONT, 18).into_font().color(&BLACK)))
-        .map_err(plot_err)?;
+    area.draw(&Text::new(
+        "|B| (T)",
+        (bar_x - 4, 40),
+        (FONT, 18).into_font().color(&BLACK),
+    ))
+    .map_err(plot_err)?;
     let n = (bar_bottom - bar_top).max(1);
     for k in 0..n {
         let t = 1.0 - k as f64 / n as f64;
         let (r, g, b) = crate::colormap::flux_scale(t);
-        area.draw(&Rectangle::new([(bar_x, bar_top + k), (bar_x + bar_w, bar_top + k + 1)], RGBColor(r, g, b).filled()))
-            .map_err(plot_err)?;
-    }
-    area.draw(&Rectangle::new([(bar_x, bar_top), (bar_x + bar_w, bar_bottom)], BLACK.stroke_width(1)))
+        area.draw(&Rectangle::new(
+            [(bar_x, bar_top + k), (bar_x + bar_w, bar_top + k + 1)],
+            RGBColor(r, g, b).filled(),
+        ))
         .map_err(plot_err)?;
+    }
+    area.draw(&Rectangle::new(
+        [(bar_x, bar_top), (bar_x + bar_w, bar_bottom)],
+        BLACK.stroke_width(1),
+    ))
+    .map_err(plot_err)?;
     let ticks = nice_ticks(top);
     for v in ticks {
         let y = bar_bottom - ((v / top) * (bar_bottom - bar_top) as f64).round() as i32;
-        area.draw(&PathElement::new(vec![(bar_x + bar_w, y), (bar_x + bar_w + 6, y)], BLACK.stroke_width(1)))
-            .map_err(plot_err)?;
-        area.draw(&Text::new(format_tesla(v), (bar_x + bar_w + 10, y - 8), (FONT, 15).into_font().color(&BLACK)))
-            .map_err(plot_err)?;
+        area.draw(&PathElement::new(
+            vec![(bar_x + bar_w, y), (bar_x + bar_w + 6, y)],
+            BLACK.stroke_width(1),
+        ))
+        .map_err(plot_err)?;
+        area.draw(&Text::new(
+            format_tesla(v),
+            (bar_x + bar_w + 10, y - 8),
+            (FONT, 15).into_font().color(&BLACK),
+        ))
+        .map_err(plot_err)?;
     }
     area.draw(&Text::new(
         format!("top: {} T and above", format_tesla(top)),
@@ -371,8 +476,12 @@ where
         (FONT, 13).into_font().color(&EDGE),
     ))
     .map_err(plot_err)?;
-    area.draw(&Text::new("lines: equal flux steps", (4, bar_bottom + 42), (FONT, 13).into_font().color(&EDGE)))
-        .map_err(plot_err)?;
+    area.draw(&Text::new(
+        "lines: equal flux steps",
+        (4, bar_bottom + 42),
+        (FONT, 13).into_font().color(&EDGE),
+    ))
+    .map_err(plot_err)?;
     Ok(())
 }
 
@@ -383,8 +492,15 @@ fn nice_ticks(top: f64) -> Vec<f64> {
     }
     let raw = top / 5.0;
     let mag = 10f64.powf(raw.log10().floor());
-    let step = [1.0, 2.0, 5.0, 10.0].iter().map(|m| m * mag).find(|s| *s >= raw).unwrap_or(10.0 * mag);
-    (0..).map(|k| k as f64 * step).take_while(|v| *v <= top * (1.0 + 1e-9)).collect()
+    let step = [1.0, 2.0, 5.0, 10.0]
+        .iter()
+        .map(|m| m * mag)
+        .find(|s| *s >= raw)
+        .unwrap_or(10.0 * mag);
+    (0..)
+        .map(|k| k as f64 * step)
+        .take_while(|v| *v <= top * (1.0 + 1e-9))
+        .collect()
 }
 
 fn format_tesla(v: f64) -> String {
@@ -404,8 +520,15 @@ pub type ProfilePoint = (f64, Option<[f64; 3]>);
 /// Plot a profile of B along a line: |B|, Bx and By against position.
 pub fn profile_png(path: &Path, title: &str, unit: &str, samples: &[ProfilePoint]) -> Result<()> {
     ensure_font()?;
-    let inside: Vec<(f64, [f64; 3])> = samples.iter().filter_map(|(x, v)| v.map(|v| (*x, v))).collect();
-    let x_max = samples.last().map(|s| s.0).unwrap_or(1.0).max(f64::MIN_POSITIVE);
+    let inside: Vec<(f64, [f64; 3])> = samples
+        .iter()
+        .filter_map(|(x, v)| v.map(|v| (*x, v)))
+        .collect();
+    let x_max = samples
+        .last()
+        .map(|s| s.0)
+        .unwrap_or(1.0)
+        .max(f64::MIN_POSITIVE);
     let (mut lo, mut hi) = (0.0f64, 0.0f64);
     for (_, v) in &inside {
         for c in v {
@@ -433,13 +556,22 @@ pub fn profile_png(path: &Path, title: &str, unit: &str, samples: &[ProfilePoint
         .draw()
         .map_err(plot_err)?;
     // Dark for |B| (the quantity read first), two mid tones for components.
-    let series = [("|B|", 2, RGBColor(30, 40, 90), 3u32), ("Bx", 0, RGBColor(200, 110, 40), 2), ("By", 1, RGBColor(60, 150, 120), 2)];
+    let series = [
+        ("|B|", 2, RGBColor(30, 40, 90), 3u32),
+        ("Bx", 0, RGBColor(200, 110, 40), 2),
+        ("By", 1, RGBColor(60, 150, 120), 2),
+    ];
     for (label, k, colour, width) in series {
         chart
-            .draw_series(LineSeries::new(inside.iter().map(|(x, v)| (*x, v[k])), colour.stroke_width(width)))
+            .draw_series(LineSeries::new(
+                inside.iter().map(|(x, v)| (*x, v[k])),
+                colour.stroke_width(width),
+            ))
             .map_err(plot_err)?
             .label(label)
-            .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 24, y)], colour.stroke_width(width)));
+            .legend(move |(x, y)| {
+                PathElement::new(vec![(x, y), (x + 24, y)], colour.stroke_width(width))
+            });
     }
     chart
         .configure_series_labels()

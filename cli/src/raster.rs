@@ -40,8 +40,14 @@ pub fn fill(
             let q = points[i as usize];
             [(q[0] - x0) * sx, (y1 - q[1]) * sy]
         });
-        let (umin, umax) = (p[0][0].min(p[1][0]).min(p[2][0]), p[0][0].max(p[1][0]).max(p[2][0]));
-        let (vmin, vmax) = (p[0][1].min(p[1][1]).min(p[2][1]), p[0][1].max(p[1][1]).max(p[2][1]));
+        let (umin, umax) = (
+            p[0][0].min(p[1][0]).min(p[2][0]),
+            p[0][0].max(p[1][0]).max(p[2][0]),
+        );
+        let (vmin, vmax) = (
+            p[0][1].min(p[1][1]).min(p[2][1]),
+            p[0][1].max(p[1][1]).max(p[2][1]),
+        );
         if umax < 0.0 || vmax < 0.0 || umin > width as f64 || vmin > height as f64 {
             continue;
         }
@@ -63,7 +69,11 @@ pub fn fill(
         for j in j0..=j1 as usize {
             for i in i0..=i1 as usize {
                 let q = [i as f64 + 0.5, j as f64 + 0.5];
-                let (e0, e1, e2) = (edge(p[1], p[2], q), edge(p[2], p[0], q), edge(p[0], p[1], q));
+                let (e0, e1, e2) = (
+                    edge(p[1], p[2], q),
+                    edge(p[2], p[0], q),
+                    edge(p[0], p[1], q),
+                );
                 let inside = if area > 0.0 {
                     e0 >= slack && e1 >= slack && e2 >= slack
                 } else {
@@ -93,7 +103,15 @@ mod tests {
     fn two_triangles_tile_a_square_without_gaps() {
         let points = [[0.0, 0.0], [1.0, 0.0], [1.0, 1.0], [0.0, 1.0]];
         let cells = [[0, 1, 2], [0, 2, 3]];
-        let img = fill(16, 16, [0.0, 0.0, 1.0, 1.0], &points, &cells, |c| if c == 0 { (255, 0, 0) } else { (0, 0, 255) }, (0, 255, 0));
+        let img = fill(
+            16,
+            16,
+            [0.0, 0.0, 1.0, 1.0],
+            &points,
+            &cells,
+            |c| if c == 0 { (255, 0, 0) } else { (0, 0, 255) },
+            (0, 255, 0),
+        );
         // No background pixel is left inside the square.
         assert!(img.rgb.chunks(3).all(|p| p != [0, 255, 0]));
         // The lower-right half (y small, x large: bottom rows, right columns) is red.

@@ -23,21 +23,47 @@ pub enum Cells<'a> {
 }
 
 /// Render a `.vtu` document.
-pub fn render(points: &[[f64; 2]], cells: Cells, point_data: &[Array], cell_data: &[Array]) -> String {
+pub fn render(
+    points: &[[f64; 2]],
+    cells: Cells,
+    point_data: &[Array],
+    cell_data: &[Array],
+) -> String {
     let (n_cells, connectivity, nodes_per, vtk_type): (usize, Vec<i64>, usize, u8) = match cells {
-        Cells::Triangles(t) => (t.len(), t.iter().flatten().map(|&i| i as i64).collect(), 3, 5),
-        Cells::QuadraticTriangles(t) => (t.len(), t.iter().flatten().map(|&i| i as i64).collect(), 6, 22),
+        Cells::Triangles(t) => (
+            t.len(),
+            t.iter().flatten().map(|&i| i as i64).collect(),
+            3,
+            5,
+        ),
+        Cells::QuadraticTriangles(t) => (
+            t.len(),
+            t.iter().flatten().map(|&i| i as i64).collect(),
+            6,
+            22,
+        ),
     };
     let mut s = String::with_capacity(64 * points.len() + 64 * n_cells);
     s.push_str("<?xml version=\"1.0\"?>\n");
     s.push_str("<VTKFile type=\"UnstructuredGrid\" version=\"1.0\" byte_order=\"LittleEndian\" header_type=\"UInt64\">\n");
     s.push_str("<UnstructuredGrid>\n");
-    let _ = writeln!(s, "<Piece NumberOfPoints=\"{}\" NumberOfCells=\"{}\">", points.len(), n_cells);
+    let _ = writeln!(
+        s,
+        "<Piece NumberOfPoints=\"{}\" NumberOfCells=\"{}\">",
+        points.len(),
+        n_cells
+    );
     s.push_str("<Points>\n");
     let xyz: Vec<f64> = points.iter().flat_map(|p| [p[0], p[1], 0.0]).collect();
     data_array(&mut s, "Float64", "Points", 3, &f64_bytes(&xyz));
     s.push_str("</Points>\n<Cells>\n");
-    data_array(&mut s, "Int64", "connectivity", 1, &i64_bytes(&connectivity));
+    data_array(
+        &mut s,
+        "Int64",
+        "connectivity",
+        1,
+        &i64_bytes(&connectivity),
+    );
     let offsets: Vec<i64> = (1..=n_cells).map(|i| (i * nodes_per) as i64).collect();
     data_array(&mut s, "Int64", "offsets", 1, &i64_bytes(&offsets));
     data_array(&mut s, "UInt8", "types", 1, &vec![vtk_type; n_cells]);
@@ -88,7 +114,10 @@ fn i64_bytes(v: &[i64]) -> Vec<u8> {
 }
 
 fn xml_escape(s: &str) -> String {
-    s.replace('&', "&amp;").replace('<', "&lt;").replace('>', "&gt;").replace('"', "&quot;")
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
 }
 
 /// Standard base64 (RFC 4648) with padding.
@@ -96,7 +125,11 @@ fn base64_into(s: &mut String, bytes: &[u8]) {
     const ALPHABET: &[u8; 64] = b"ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
     s.reserve(bytes.len().div_ceil(3) * 4);
     for chunk in bytes.chunks(3) {
-        let b = [chunk[0], *chunk.get(1).unwrap_or(&0), *chunk.get(2).unwrap_or(&0)];
+        let b = [
+            chunk[0],
+            *chunk.get(1).unwrap_or(&0),
+            *chunk.get(2).unwrap_or(&0),
+        ];
         let n = ((b[0] as u32) << 16) | ((b[1] as u32) << 8) | b[2] as u32;
         let out = [(n >> 18) & 63, (n >> 12) & 63, (n >> 6) & 63, n & 63];
         for (k, &c) in out.iter().enumerate() {
@@ -135,7 +168,12 @@ mod tests {
     fn vtu_has_counts_and_arrays() {
         let pts = [[0.0, 0.0], [1.0, 0.0], [0.0, 1.0]];
         let tris = [[0u32, 1, 2]];
-        let doc = render(&pts, Cells::Triangles(&tris), &[], &[Array::Int("shape", vec![3])]);
+        let doc = render(
+            &pts,
+            Cells::Triangles(&tris),
+            &[],
+            &[Array::Int("shape", vec![3])],
+        );
         assert!(doc.contains("NumberOfPoints=\"3\" NumberOfCells=\"1\""));
         assert!(doc.contains("Name=\"shape\""));
         assert!(doc.ends_with("</VTKFile>\n"));

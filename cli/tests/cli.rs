@@ -5,11 +5,15 @@ use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
 fn fluxwright(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_fluxwright")).args(args).output().expect("the binary runs")
+    Command::new(env!("CARGO_BIN_EXE_fluxwright"))
+        .args(args)
+        .output()
+        .expect("the binary runs")
 }
 
 fn scratch(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("fluxwright-cli-test-{}-{name}", std::process::id()));
+    let dir =
+        std::env::temp_dir().join(format!("fluxwright-cli-test-{}-{name}", std::process::id()));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).unwrap();
     dir
@@ -80,20 +84,34 @@ fn check_accepts_a_good_model_and_prints_its_shapes() {
 fn a_missing_model_file_is_exit_1_naming_the_file() {
     let out = fluxwright(&["check", "no/such/model.toml"]);
     assert_eq!(out.status.code(), Some(1));
-    assert!(stderr(&out).contains("no/such/model.toml"), "{}", stderr(&out));
+    assert!(
+        stderr(&out).contains("no/such/model.toml"),
+        "{}",
+        stderr(&out)
+    );
 }
 
 #[test]
 fn a_misspelt_key_names_file_line_and_the_nearest_key() {
     let dir = scratch("typo");
-    let text = SMALL_CORE.replace("relative_permeability = 2000", "relative_permability = 2000");
+    let text = SMALL_CORE.replace(
+        "relative_permeability = 2000",
+        "relative_permability = 2000",
+    );
     let model = write(&dir, "typo.toml", &text);
     let out = fluxwright(&["check", model.to_str().unwrap()]);
     assert_eq!(out.status.code(), Some(1));
     let err = stderr(&out);
-    let line = text.lines().position(|l| l.contains("relative_permability")).unwrap() + 1;
+    let line = text
+        .lines()
+        .position(|l| l.contains("relative_permability"))
+        .unwrap()
+        + 1;
     assert!(err.contains(&format!("typo.toml:{line}:")), "{err}");
-    assert!(err.contains("relative_permeability"), "no suggestion in: {err}");
+    assert!(
+        err.contains("relative_permeability"),
+        "no suggestion in: {err}"
+    );
 }
 
 #[test]
@@ -102,7 +120,12 @@ fn a_failed_mesh_run_leaves_no_partial_result() {
     let text = SMALL_CORE.replace("material = \"iron\"", "material = \"irn\"");
     let model = write(&dir, "bad.toml", &text);
     let out_dir = dir.join("out");
-    let out = fluxwright(&["mesh", model.to_str().unwrap(), "-o", out_dir.to_str().unwrap()]);
+    let out = fluxwright(&[
+        "mesh",
+        model.to_str().unwrap(),
+        "-o",
+        out_dir.to_str().unwrap(),
+    ]);
     assert_eq!(out.status.code(), Some(1));
     assert!(stderr(&out).contains("irn"), "{}", stderr(&out));
     assert!(!out_dir.join("mesh.json").exists());
@@ -120,7 +143,12 @@ fn mesh_writes_json_vtu_and_png_with_exact_shape_areas() {
     let dir = scratch("mesh-good");
     let model = write(&dir, "core.toml", SMALL_CORE);
     let out_dir = dir.join("out");
-    let out = fluxwright(&["mesh", model.to_str().unwrap(), "-o", out_dir.to_str().unwrap()]);
+    let out = fluxwright(&[
+        "mesh",
+        model.to_str().unwrap(),
+        "-o",
+        out_dir.to_str().unwrap(),
+    ]);
     assert!(out.status.success(), "stderr: {}", stderr(&out));
     let json: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(out_dir.join("mesh.json")).unwrap()).unwrap();
@@ -134,7 +162,10 @@ fn mesh_writes_json_vtu_and_png_with_exact_shape_areas() {
     assert!((area("return") - 96.0).abs() < 1e-9);
     assert!((area("outer") - (130.0 * 120.0 - 1180.0 - 192.0)).abs() < 1e-7);
     for file in ["mesh.vtu", "mesh.png"] {
-        assert!(std::fs::metadata(out_dir.join(file)).unwrap().len() > 1000, "{file}");
+        assert!(
+            std::fs::metadata(out_dir.join(file)).unwrap().len() > 1000,
+            "{file}"
+        );
     }
     let vtu = std::fs::read_to_string(out_dir.join("mesh.vtu")).unwrap();
     let triangles = json["triangles"].as_u64().unwrap();
@@ -153,7 +184,13 @@ fn demo_runs_and_can_save_its_model() {
     let dir = scratch("demo");
     let saved = dir.join("demo.toml");
     let out_dir = dir.join("out");
-    let out = fluxwright(&["demo", "-o", out_dir.to_str().unwrap(), "--save-model", saved.to_str().unwrap()]);
+    let out = fluxwright(&[
+        "demo",
+        "-o",
+        out_dir.to_str().unwrap(),
+        "--save-model",
+        saved.to_str().unwrap(),
+    ]);
     assert!(out.status.success(), "stderr: {}", stderr(&out));
     assert!(out_dir.join("mesh.json").exists());
     let check = fluxwright(&["check", saved.to_str().unwrap()]);
@@ -168,15 +205,31 @@ fn every_bad_model_exits_1_naming_its_line_and_culprit() {
     for entry in std::fs::read_dir(&dir).unwrap() {
         let path = entry.unwrap().path();
         let text = std::fs::read_to_string(&path).unwrap();
-        let expect = text.lines().next().unwrap().strip_prefix("# expect: ").expect("expect header");
+        let expect = text
+            .lines()
+            .next()
+            .unwrap()
+            .strip_prefix("# expect: ")
+            .expect("expect header");
         let (line, what) = expect.split_once(" | ").unwrap();
         let out_dir = scratch(&format!("bad-{seen}"));
-        for args in [vec!["check", path.to_str().unwrap()], vec!["mesh", path.to_str().unwrap(), "-o", out_dir.to_str().unwrap()]] {
+        for args in [
+            vec!["check", path.to_str().unwrap()],
+            vec![
+                "mesh",
+                path.to_str().unwrap(),
+                "-o",
+                out_dir.to_str().unwrap(),
+            ],
+        ] {
             let out = fluxwright(&args);
             let err = stderr(&out);
             assert_eq!(out.status.code(), Some(1), "{}: {err}", path.display());
             let file = path.file_name().unwrap().to_str().unwrap();
-            assert!(err.contains(&format!("{file}:{line}:")), "{file}: no line {line} in:\n{err}");
+            assert!(
+                err.contains(&format!("{file}:{line}:")),
+                "{file}: no line {line} in:\n{err}"
+            );
             assert!(err.contains(what), "{file}: `{what}` missing from:\n{err}");
             assert!(!err.contains("panicked"), "{err}");
         }
@@ -197,12 +250,22 @@ fn every_good_model_checks_and_solves() {
         let out = fluxwright(&["check", path.to_str().unwrap()]);
         assert!(out.status.success(), "{}: {}", path.display(), stderr(&out));
         let out_dir = scratch(path.file_stem().unwrap().to_str().unwrap());
-        let out = fluxwright(&["solve", path.to_str().unwrap(), "-o", out_dir.to_str().unwrap()]);
+        let out = fluxwright(&[
+            "solve",
+            path.to_str().unwrap(),
+            "-o",
+            out_dir.to_str().unwrap(),
+        ]);
         assert!(out.status.success(), "{}: {}", path.display(), stderr(&out));
         let results: serde_json::Value =
-            serde_json::from_str(&std::fs::read_to_string(out_dir.join("results.json")).unwrap()).unwrap();
+            serde_json::from_str(&std::fs::read_to_string(out_dir.join("results.json")).unwrap())
+                .unwrap();
         assert_eq!(results["solve"]["converged"], true, "{}", path.display());
-        assert!(results["energy_j"].as_f64().unwrap() > 0.0, "{}", path.display());
+        assert!(
+            results["energy_j"].as_f64().unwrap() > 0.0,
+            "{}",
+            path.display()
+        );
         for file in ["field.png", "field.svg", "fields.vtu", "mesh.json"] {
             assert!(out_dir.join(file).exists(), "{}: {file}", path.display());
         }

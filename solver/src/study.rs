@@ -7,18 +7,20 @@
 //!
 //! # let text = "";
 //! let model = Model::from_toml_str(text, &ModelSource::new("device.toml")).unwrap();
-//! let mesh = fluxwright_mesher::mesh(&model.mesh_input()).unwrap();
-//! let setup = study::problem(&model, &mesh).unwrap();
+//! let mm = study::mesh_for(&model).unwrap();
+//! let setup = study::problem(&model, &mm.mesh).unwrap();
 //! let solution = nonlinear::solve(&setup.problem, &Default::default()).unwrap();
-//! let results = study::results(&model, &mesh, &setup, &solution, 0.0);
+//! let results = study::results(&model, &mm.mesh, &setup, &solution, 0.0);
 //! println!("energy {} J", results.energy_j);
 //! ```
 
 use crate::fe::{ElementOrder, Symmetry};
 use crate::field::Solution;
-use crate::material::{BhCurve, Material, MaterialError};
-use crate::model::{EdgeKind, Excitation, Model, OuterCondition, Permeability, Symmetry as ModelSymmetry};
 use crate::kelvin::{Exterior, KelvinError, KelvinMap};
+use crate::material::{BhCurve, Material, MaterialError};
+use crate::model::{
+    EdgeKind, Excitation, Model, OuterCondition, Permeability, Symmetry as ModelSymmetry,
+};
 use crate::problem::{BoundarySpec, EdgeCondition, Problem, RegionProps};
 use fluxwright_mesher::{Mesh, MeshError, Outline, Point, Segment};
 use serde::Serialize;
@@ -40,7 +42,9 @@ pub enum StudyError {
         source: MaterialError,
     },
     /// A magnet given a B-H curve instead of a recoil permeability.
-    #[error("material `{0}`: a magnet needs a linear recoil `relative_permeability`, not a B-H curve")]
+    #[error(
+        "material `{0}`: a magnet needs a linear recoil `relative_permeability`, not a B-H curve"
+    )]
     MagnetWithCurve(String),
     /// A current-carrying shape has no area left in the mesh (later shapes
     /// cover all of it).
@@ -113,10 +117,20 @@ pub fn mesh_for(model: &Model) -> Result<ModelMesh, StudyError> {
         // Sizes grow from the rim's; the far field (the image centre) is
         // smooth, so a few elements per radius do.
         let max_size = model.mesh.max_size.min(plan.map.radius / 4.0);
-        plan.attach(&mut mesh, model.mesh.growth, max_size, model.mesh.min_angle_deg)?;
+        plan.attach(
+            &mut mesh,
+            model.mesh.growth,
+            max_size,
+            model.mesh.min_angle_deg,
+        )?;
         exterior = Some(plan.map);
     }
-    Ok(ModelMesh { mesh, model_nodes, model_triangles, exterior })
+    Ok(ModelMesh {
+        mesh,
+        model_nodes,
+        model_triangles,
+        exterior,
+    })
 }
 
 /// The exterior plan of an open outer edge, `None` for other conditions.
@@ -125,7 +139,12 @@ fn open_exterior(model: &Model) -> Result<Option<Exterior>, KelvinError> {
         return Ok(None);
     }
     let axisymmetric = matches!(model.symmetry, ModelSymmetry::Axisymmetric);
-    Exterior::plan(&model.outer.outline, axisymmetric, model.shapes.len() as u32).map(Some)
+    Exterior::plan(
+        &model.outer.outline,
+        axisymmetric,
+        model.shapes.len() as u32,
+    )
+    .map(Some)
 }
 
 /// Build the finite-element problem for `model` on `mesh` (which must be
@@ -146,15 +165,20 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
     let mut side_area: BTreeMap<(usize, i8), f64> = BTreeMap::new();
     for (i, s) in model.shapes.iter().enumerate() {
         if let Excitation::Winding { winding, direction } = s.excitation {
-            *side_area.entry((winding, direction.signum() as i8)).or_default() += area[i];
+            *side_area
+                .entry((winding, direction.signum() as i8))
+                .or_default() += area[i];
         }
     }
     let mut regions = Vec::with_capacity(model.shapes.len() + 1);
     let mut densities = Vec::with_capacity(model.shapes.len());
     for (i, s) in model.shapes.iter().enumerate() {
         let m = &model.materials[s.material];
-        let material_err =
-            |source| StudyError::Material { shape: s.name.clone(), material: m.name.clone(), source };
+        let material_err = |source| StudyError::Material {
+            shape: s.name.clone(),
+            material: m.name.clone(),
+            source,
+        };
         let material = match (&m.permeability, m.remanence_t) {
             (Permeability::Linear { relative }, Some(br)) => Material::Magnet {
                 remanence_t: br,
@@ -165,9 +189,13 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
             (Permeability::Curve(c), None) => {
                 Material::Curve(BhCurve::try_new(&c.h_a_per_m, &c.b_t).map_err(material_err)?)
             }
-            (Permeability::Curve(_), Some(_)) => return Err(StudyError::MagnetWithCurve(m.name.clone())),
+            (Permeability::Curve(_), Some(_)) => {
+                return Err(StudyError::MagnetWithCurve(m.name.clone()))
+            }
         };
-        let material = material.laminated(m.stacking_factor).map_err(material_err)?;
+        let material = material
+            .laminated(m.stacking_factor)
+            .map_err(material_err)?;
         let density = match s.excitation {
             Excitation::None => 0.0,
             Excitation::Winding { winding, direction } => {
@@ -186,7 +214,10 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
             }
         };
         densities.push(density);
-        regions.push(RegionProps { material, current_density_a_per_m2: density });
+        regions.push(RegionProps {
+            material,
+            current_density_a_per_m2: density,
+        });
     }
     let exterior = open_exterior(model)?.filter(|e| e.is_attached(mesh));
     if exterior.is_some() {
@@ -219,16 +250,30 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
     let segments = outer_segments(&model.outer.outline);
     for (k, e) in model.edges.iter().enumerate() {
         let index = k + 1;
-        let on = stretch_segments(&segments, e.from, e.to)
-            .map_err(|reason| StudyError::Edge { index, from: e.from, to: e.to, reason })?;
+        let on = stretch_segments(&segments, e.from, e.to).map_err(|reason| StudyError::Edge {
+            index,
+            from: e.from,
+            to: e.to,
+            reason,
+        })?;
         match &e.kind {
-            EdgeKind::ZeroPotential => boundary.segments.extend(on.iter().map(|&s| (s, EdgeCondition::ZeroPotential))),
-            EdgeKind::FluxNormal => boundary.segments.extend(on.iter().map(|&s| (s, EdgeCondition::FluxNormal))),
+            EdgeKind::ZeroPotential => boundary
+                .segments
+                .extend(on.iter().map(|&s| (s, EdgeCondition::ZeroPotential))),
+            EdgeKind::FluxNormal => boundary
+                .segments
+                .extend(on.iter().map(|&s| (s, EdgeCondition::FluxNormal))),
             EdgeKind::Periodic { partner } | EdgeKind::AntiPeriodic { partner } => {
                 let anti = matches!(e.kind, EdgeKind::AntiPeriodic { .. });
-                let other = stretch_segments(&segments, partner[0], partner[1]).map_err(|reason| {
-                    StudyError::Edge { index, from: e.from, to: e.to, reason: format!("partner stretch: {reason}") }
-                })?;
+                let other =
+                    stretch_segments(&segments, partner[0], partner[1]).map_err(|reason| {
+                        StudyError::Edge {
+                            index,
+                            from: e.from,
+                            to: e.to,
+                            reason: format!("partner stretch: {reason}"),
+                        }
+                    })?;
                 if other.len() != on.len() {
                     return Err(StudyError::Edge {
                         index,
@@ -242,7 +287,11 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
                     });
                 }
                 for (&s, &p) in on.iter().zip(&other) {
-                    let c = if anti { EdgeCondition::AntiPeriodic { partner: p } } else { EdgeCondition::Periodic { partner: p } };
+                    let c = if anti {
+                        EdgeCondition::AntiPeriodic { partner: p }
+                    } else {
+                        EdgeCondition::Periodic { partner: p }
+                    };
                     boundary.segments.push((s, c));
                 }
             }
@@ -255,12 +304,30 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
     }
 
     let symmetry = match model.symmetry {
-        ModelSymmetry::Planar => Symmetry::Planar { depth_m: model.depth * scale },
+        ModelSymmetry::Planar => Symmetry::Planar {
+            depth_m: model.depth * scale,
+        },
         ModelSymmetry::Axisymmetric => Symmetry::Axisymmetric,
     };
-    let order = if model.element_order == 1 { ElementOrder::P1 } else { ElementOrder::P2 };
-    let problem = Problem { mesh, length_scale_m: scale, symmetry, order, regions, boundary, source: None };
-    Ok(ProblemSetup { problem, current_density_a_per_m2: densities, notes })
+    let order = if model.element_order == 1 {
+        ElementOrder::P1
+    } else {
+        ElementOrder::P2
+    };
+    let problem = Problem {
+        mesh,
+        length_scale_m: scale,
+        symmetry,
+        order,
+        regions,
+        boundary,
+        source: None,
+    };
+    Ok(ProblemSetup {
+        problem,
+        current_density_a_per_m2: densities,
+        notes,
+    })
 }
 
 /// The outer outline's segments in the mesher's numbering (all loops, in
@@ -270,13 +337,23 @@ fn outer_segments(outline: &Outline) -> Vec<(Point, Point, bool)> {
         .loops
         .iter()
         .flat_map(|l| l.segments.iter())
-        .map(|s| (s.start_point(), s.end_point(), matches!(s, Segment::Line { .. })))
+        .map(|s| {
+            (
+                s.start_point(),
+                s.end_point(),
+                matches!(s, Segment::Line { .. }),
+            )
+        })
         .collect()
 }
 
 /// Indices of the straight outer segments lying on the stretch `from`→`to`,
 /// ordered from `from` to `to`.
-fn stretch_segments(segments: &[(Point, Point, bool)], from: Point, to: Point) -> Result<Vec<u32>, String> {
+fn stretch_segments(
+    segments: &[(Point, Point, bool)],
+    from: Point,
+    to: Point,
+) -> Result<Vec<u32>, String> {
     let d = [to[0] - from[0], to[1] - from[1]];
     let len = d[0].hypot(d[1]);
     if !(len > 0.0) {
@@ -452,11 +529,19 @@ pub struct LoopOut {
 }
 
 /// The samples of every `[[profile]]`, for the caller to write as CSV.
-pub fn profile_samples(model: &Model, solution: &Solution) -> Vec<(String, Vec<crate::post::profiles::ProfileSample>)> {
+pub fn profile_samples(
+    model: &Model,
+    solution: &Solution,
+) -> Vec<(String, Vec<crate::post::profiles::ProfileSample>)> {
     model
         .profiles
         .iter()
-        .map(|p| (p.name.clone(), crate::post::profiles::sample_line(solution, p.from, p.to, p.samples)))
+        .map(|p| {
+            (
+                p.name.clone(),
+                crate::post::profiles::sample_line(solution, p.from, p.to, p.samples),
+            )
+        })
         .collect()
 }
 
@@ -467,26 +552,48 @@ pub fn profile_file(name: &str) -> String {
 
 /// Gather the results of a solved model. `seconds` is the wall-clock time
 /// to report.
-pub fn results(model: &Model, mesh: &Mesh, setup: &ProblemSetup, solution: &Solution, seconds: f64) -> SolveResults {
+pub fn results(
+    model: &Model,
+    mesh: &Mesh,
+    setup: &ProblemSetup,
+    solution: &Solution,
+    seconds: f64,
+) -> SolveResults {
     let report = &solution.report;
     let mut notes = setup.notes.clone();
     // An open boundary appends the Kelvin image of the exterior (region id
     // `shapes.len()`) after the model's own triangles and nodes; counts and
     // probes are of the model alone.
     let image_region = model.shapes.len() as u32;
-    let model_triangles: Vec<usize> = (0..mesh.triangles.len()).filter(|&t| mesh.regions[t] != image_region).collect();
-    let model_nodes =
-        model_triangles.iter().flat_map(|&t| mesh.triangles[t]).map(|n| n as usize + 1).max().unwrap_or(0);
+    let model_triangles: Vec<usize> = (0..mesh.triangles.len())
+        .filter(|&t| mesh.regions[t] != image_region)
+        .collect();
+    let model_nodes = model_triangles
+        .iter()
+        .flat_map(|&t| mesh.triangles[t])
+        .map(|n| n as usize + 1)
+        .max()
+        .unwrap_or(0);
     let mut probes = BTreeMap::new();
     for p in &model.probes {
-        match solution.probe(p.at).filter(|f| mesh.regions[f.triangle] != image_region) {
+        match solution
+            .probe(p.at)
+            .filter(|f| mesh.regions[f.triangle] != image_region)
+        {
             Some(f) => {
                 probes.insert(
                     p.name.clone(),
-                    ProbeResult { b_t: f.b, b_magnitude_t: f.b_magnitude(), h_a_per_m: f.h },
+                    ProbeResult {
+                        b_t: f.b,
+                        b_magnitude_t: f.b_magnitude(),
+                        h_a_per_m: f.h,
+                    },
                 );
             }
-            None => notes.push(format!("probe `{}` at {:?} lies outside the mesh; not reported", p.name, p.at)),
+            None => notes.push(format!(
+                "probe `{}` at {:?} lies outside the mesh; not reported",
+                p.name, p.at
+            )),
         }
     }
     let mut windings = BTreeMap::new();
@@ -519,7 +626,13 @@ pub fn results(model: &Model, mesh: &Mesh, setup: &ProblemSetup, solution: &Solu
         };
         match crate::post::force::force(solution, &regions_of(&f.shapes), f.method) {
             Ok(force_n) => {
-                forces.insert(f.name.clone(), ForceOut { force_n, method: label });
+                forces.insert(
+                    f.name.clone(),
+                    ForceOut {
+                        force_n,
+                        method: label,
+                    },
+                );
             }
             Err(e) => notes.push(format!("force `{}` not reported: {e}", f.name)),
         }
@@ -554,10 +667,18 @@ pub fn results(model: &Model, mesh: &Mesh, setup: &ProblemSetup, solution: &Solu
             Err(e) => notes.push(format!("loop `{}` not reported: {e}", l.name)),
         }
     }
-    let profiles = model.profiles.iter().map(|p| (p.name.clone(), profile_file(&p.name))).collect();
+    let profiles = model
+        .profiles
+        .iter()
+        .map(|p| (p.name.clone(), profile_file(&p.name)))
+        .collect();
     SolveResults {
         format: "fluxwright-results/1",
-        model: ModelInfo { title: model.title.clone(), symmetry: model.symmetry.as_str(), depth_m: model.depth_m() },
+        model: ModelInfo {
+            title: model.title.clone(),
+            symmetry: model.symmetry.as_str(),
+            depth_m: model.depth_m(),
+        },
         mesh: MeshInfo {
             nodes: model_nodes,
             triangles: model_triangles.len(),
