@@ -46,6 +46,12 @@ pub enum Command {
         #[arg(long, value_name = "X0,Y0,X1,Y1", value_parser = parse_view, allow_hyphen_values = true)]
         view: Option<[f64; 4]>,
     },
+    /// List the built-in typical materials (for `from_library`), or show one
+    /// with its B-H points.
+    Materials {
+        /// A material's name, to show its values.
+        name: Option<String>,
+    },
     /// Mesh and solve the built-in demo model (an invented door-holding
     /// electromagnet), write every output and explain each number.
     Demo {

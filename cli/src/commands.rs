@@ -31,6 +31,7 @@ pub fn run(cli: Cli) -> Result<u8> {
             let model = load_model(&model)?;
             solve(&model, &out, view)
         }
+        Command::Materials { name } => materials(name.as_deref()),
         Command::Demo { out, save_model } => demo(&out, save_model.as_deref()),
     }
 }
@@ -721,4 +722,53 @@ fn region_outlines(mesh: &Mesh) -> Vec<[[f64; 2]; 2]> {
         .filter(|&(e, _)| differs[e] || count[e] == 1)
         .map(|(_, &[a, b])| [mesh.nodes[a as usize], mesh.nodes[b as usize]])
         .collect()
+}
+
+/// `fluxwright materials [NAME]`: the built-in typical materials.
+fn materials(name: Option<&str>) -> Result<u8> {
+    use fluxwright_solver::model::{library_material, library_materials};
+    let law = |m: &fluxwright_solver::model::LibraryMaterial| match (
+        m.bh_curve,
+        m.relative_permeability,
+        m.remanence_t,
+    ) {
+        (_, Some(mu), Some(br)) => format!("magnet Br = {br} T, recoil μr = {mu}"),
+        (Some((h, _)), _, _) => format!("B-H curve, {} points", h.len()),
+        (None, Some(mu), None) => format!("linear μr = {mu}"),
+        _ => "—".to_string(),
+    };
+    match name {
+        None => {
+            let mut rows = vec![["name".to_string(), "what it is".into(), "law".into()]];
+            for m in library_materials() {
+                rows.push([m.name.to_string(), m.description.to_string(), law(m)]);
+            }
+            print_table(&rows);
+            println!("\nUse one with `from_library = \"NAME\"` under [materials.YOURNAME]; keys given beside it override.");
+            println!("`fluxwright materials NAME` shows its values.");
+        }
+        Some(n) => {
+            let Some(m) = library_material(n) else {
+                let names: Vec<&str> = library_materials().iter().map(|m| m.name).collect();
+                return Err(Failure::input(format!(
+                    "no built-in material `{n}`; the built-in ones are: {}",
+                    names.join(", ")
+                ))
+                .into());
+            };
+            println!("{}: {}", m.name, m.description);
+            println!("  law: {}", law(m));
+            if let Some((h, b)) = m.bh_curve {
+                let mut rows = vec![["H (A/m)".to_string(), "B (T)".into()]];
+                for (h, b) in h.iter().zip(b) {
+                    rows.push([format!("{h}"), format!("{b}")]);
+                }
+                print_table(&rows);
+                println!("  past the last point the curve continues with slope μ0");
+            }
+            println!("  source: {}", m.source);
+        }
+    }
+    println!("\nCaution: these are typical values for first sketches. Real material data should come from the supplier's data sheet.");
+    Ok(0)
 }

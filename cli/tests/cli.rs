@@ -271,3 +271,23 @@ fn every_good_model_checks_and_solves() {
         }
     }
 }
+
+#[test]
+fn materials_lists_the_library_and_shows_one_with_its_source() {
+    let out = fluxwright(&["materials"]);
+    assert!(out.status.success());
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        text.contains("silicon-steel") && text.contains("supplier"),
+        "{text}"
+    );
+    let out = fluxwright(&["materials", "silicon-steel"]);
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        out.status.success() && text.contains("H (A/m)") && text.contains("source:"),
+        "{text}"
+    );
+    let out = fluxwright(&["materials", "unobtainium"]);
+    assert_eq!(out.status.code(), Some(1));
+    assert!(stderr(&out).contains("unobtainium"));
+}
