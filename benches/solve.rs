@@ -1,9 +1,10 @@
-//! Finite-element core benchmarks: assembly, numeric factorisation and the
-//! full nonlinear solve, P1 and P2, at about 10k and 100k unknowns (1M with
-//! `FLUXWRIGHT_BENCH_1M=1`, slow).
+//! Finite-element core benchmarks: assembly, symbolic analysis, numeric
+//! factorisation, triangular solve and the full nonlinear solve, P1 and P2,
+//! at about 10k and 100k unknowns (1M with `FLUXWRIGHT_BENCH_1M=1`, slow).
 //!
-//! Ids: `assemble/p1/n=…`, `factor/p2/n=…`, `solve/p1/n=…` where n is the
-//! number of reduced unknowns. The problem: a square of side 0.2 m (zero
+//! Ids: `assemble/p1/n=…`, `analyze/p1/n=…`, `factor/p2/n=…`,
+//! `substitute/p1/n=…` (forward and back substitution with the factor),
+//! `solve/p1/n=…` (Newton) where n is the number of reduced unknowns. The problem: a square of side 0.2 m (zero
 //! potential around it) holding an iron frame with a gapped centre leg,
 //! driven into saturation by a coil around the leg; a structured mesh so
 //! the sizes are exact.
@@ -114,10 +115,24 @@ fn bench(c: &mut Criterion) {
             |b| b.iter(|| asm.assemble(&u, Some(&mut values), &mut residual)),
         );
         let mut solver = FaerCholesky::default();
+        group.bench_function(
+            BenchmarkId::new(format!("analyze/{}", name(order)), n),
+            |b| b.iter(|| solver.analyze(&asm.pattern).expect("analysis")),
+        );
         solver.analyze(&asm.pattern).expect("analysis");
         group.bench_function(
             BenchmarkId::new(format!("factor/{}", name(order)), n),
             |b| b.iter(|| solver.factor(&values).expect("SPD")),
+        );
+        let mut rhs = residual.clone();
+        group.bench_function(
+            BenchmarkId::new(format!("substitute/{}", name(order)), n),
+            |b| {
+                b.iter(|| {
+                    rhs.copy_from_slice(&residual);
+                    solver.solve(&mut rhs).expect("factored")
+                })
+            },
         );
         group.bench_function(BenchmarkId::new(format!("solve/{}", name(order)), n), |b| {
             b.iter(|| {
