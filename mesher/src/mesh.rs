@@ -105,6 +105,16 @@ pub enum MeshError {
     /// The triangulation library refused the input.
     #[error("triangulation failed: {0}")]
     Triangulation(String),
+    /// A matched (periodic) pair of outer segments cannot be meshed alike.
+    #[error("matched segments {segment} and {partner}: {reason}")]
+    Matched {
+        /// The pair's first segment.
+        segment: u32,
+        /// Its partner.
+        partner: u32,
+        /// What is wrong.
+        reason: String,
+    },
     /// An invariant of [`Mesh`] does not hold.
     #[error("mesh invariant broken: {0}")]
     Invariant(String),

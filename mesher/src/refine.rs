@@ -22,6 +22,7 @@ use spade::{
 
 use crate::domain::OUTSIDE;
 use crate::geometry::Point;
+use crate::matched::MatchedLine;
 use crate::sizefield::{Pslg, SizeField};
 
 /// "None" in the vertex bookkeeping fields.
@@ -39,6 +40,9 @@ pub(crate) struct MeshVertex {
     pub pv: u32,
     /// For a vertex inside a PSLG edge: that edge's end vertices.
     pub ends: [u32; 2],
+    /// Matched-segment sides this vertex lies on (see
+    /// [`crate::matched::Plan::vertex_lock`]).
+    pub lock: u64,
 }
 
 impl HasPosition for MeshVertex {
@@ -85,6 +89,12 @@ pub(crate) struct Refiner<'a> {
     broken: bool,
     stack: Vec<FixedDirectedEdgeHandle>,
     encroached: Vec<FixedUndirectedEdgeHandle>,
+    /// The matched pairs: a split of a piece on one side is repeated at the
+    /// image point on the other.
+    lines: Vec<MatchedLine>,
+    /// For each lock bit (side of a pair), its vertices sorted by their
+    /// parameter along the pair's first segment.
+    sides: Vec<Vec<(f64, FixedVertexHandle)>>,
 }
 
 fn pt(p: Point2<f64>) -> Point {
@@ -114,6 +124,7 @@ fn circumcenter(p: [Point2<f64>; 3]) -> Point2<f64> {
 }
 
 impl<'a> Refiner<'a> {
+    #[allow(clippy::too_many_arguments)]
     pub(crate) fn new(
         cdt: &'a mut MeshCdt,
         field: &'a SizeField,
@@ -122,9 +133,10 @@ impl<'a> Refiner<'a> {
         min_len: f64,
         fixed_boundary: bool,
         max_vertices: usize,
+        lines: Vec<MatchedLine>,
     ) -> Refiner<'a> {
         let s = min_angle_deg.to_radians().sin();
-        Refiner {
+        let mut refiner = Refiner {
             cdt,
             field,
             pslg,
@@ -141,7 +153,21 @@ impl<'a> Refiner<'a> {
             broken: false,
             stack: Vec::new(),
             encroached: Vec::new(),
+            sides: vec![Vec::new(); 2 * lines.len()],
+            lines,
+        };
+        if !refiner.sides.is_empty() {
+            let locked: Vec<(FixedVertexHandle, u64)> = refiner
+                .cdt
+                .vertices()
+                .filter(|v| v.data().lock != 0)
+                .map(|v| (v.fix(), v.data().lock))
+                .collect();
+            for (v, lock) in locked {
+                refiner.index_side_vertex(v, lock);
+            }
         }
+        refiner
     }
 
     fn push_face(&mut self, f: FixedFaceHandle<InnerTag>) {
@@ -342,6 +368,12 @@ impl<'a> Refiner<'a> {
             return;
         };
         let fh = self.cdt.face(f);
+        let locks = fh.vertices().map(|v| v.data().lock);
+        if locks[0] & locks[1] & locks[2] != 0 {
+            // Three corners on one straight matched segment: a flat sliver
+            // outside the domain left by rounding, not a mesh triangle.
+            return;
+        }
         let p = fh.positions();
         let hint = fh.vertices()[0].fix();
         let bg_hint = fh.vertices()[0].data().bg;
@@ -414,6 +446,7 @@ impl<'a> Refiner<'a> {
                     bg,
                     pv: NONE,
                     ends: [NONE, NONE],
+                    lock: 0,
                 };
                 match self.cdt.insert_with_hint(v, hint) {
                     Ok(v) if self.cdt.num_vertices() > n0 => self.after_insert(v),
@@ -516,7 +549,6 @@ impl<'a> Refiner<'a> {
         }
         let d = self.cdt.directed_edge(e.as_directed());
         let [va, vb] = d.vertices();
-        let (a, b) = (va.fix(), vb.fix());
         let (da, db) = (*va.data(), *vb.data());
         let (pa, pb) = (da.pos, db.pos);
         let len2 = (pa.x - pb.x).powi(2) + (pa.y - pb.y).powi(2);
@@ -539,6 +571,104 @@ impl<'a> Refiner<'a> {
             0.5
         };
         let m = Point2::new(pa.x + t * (pb.x - pa.x), pa.y + t * (pb.y - pa.y));
+        let shared = da.lock & db.lock;
+        if shared == 0 {
+            return self.insert_on_constraint(e, m, 0);
+        }
+        // A piece of a matched segment: split its image on the partner at
+        // the image point too, so both sides keep the same nodes.
+        let bit = shared.trailing_zeros() as usize;
+        let tol = 1e-6 * len;
+        let other = bit ^ 1;
+        let (Some(qa), Some(qb)) = (
+            self.side_vertex(other, self.side_param(bit, pa), tol),
+            self.side_vertex(other, self.side_param(bit, pb), tol),
+        ) else {
+            self.outcome.met = false;
+            return false;
+        };
+        let Some(partner) = self
+            .cdt
+            .get_edge_from_neighbors(qa, qb)
+            .filter(|p| p.is_constraint_edge())
+            .map(|p| p.fix().as_undirected())
+        else {
+            self.outcome.met = false;
+            return false;
+        };
+        if !self.insert_on_constraint(e, m, 1u64 << bit) {
+            return false;
+        }
+        // The split may have re-added constraints: find the image again.
+        let partner = match self.cdt.get_edge_from_neighbors(qa, qb) {
+            Some(p) if p.is_constraint_edge() => p.fix().as_undirected(),
+            _ => partner,
+        };
+        // The image point, interpolated between the partner's own ends so
+        // that it stays on the partner's line to rounding.
+        let (ra, rb) = (
+            self.cdt.vertex(qa).position(),
+            self.cdt.vertex(qb).position(),
+        );
+        let image_m = Point2::new(ra.x + t * (rb.x - ra.x), ra.y + t * (rb.y - ra.y));
+        if !self.insert_on_constraint(partner, image_m, 1u64 << (bit ^ 1)) {
+            // One side split and not the other: the final check reports it.
+            self.outcome.met = false;
+        }
+        true
+    }
+
+    /// Parameter of `p` along the first segment of the pair of lock bit
+    /// `bit` (a partner point is carried back first).
+    fn side_param(&self, bit: usize, p: Point2<f64>) -> f64 {
+        let m = &self.lines[bit / 2];
+        let q = if bit % 2 == 0 {
+            pt(p)
+        } else {
+            m.motion.inverse().apply(pt(p))
+        };
+        let d = [m.a[1][0] - m.a[0][0], m.a[1][1] - m.a[0][1]];
+        let len = d[0].hypot(d[1]);
+        ((q[0] - m.a[0][0]) * d[0] + (q[1] - m.a[0][1]) * d[1]) / len
+    }
+
+    /// Record a vertex on the sides given by `lock`.
+    fn index_side_vertex(&mut self, v: FixedVertexHandle, lock: u64) {
+        let p = self.cdt.vertex(v).position();
+        for bit in 0..self.sides.len() {
+            if lock & (1u64 << bit) != 0 {
+                let t = self.side_param(bit, p);
+                let list = &mut self.sides[bit];
+                let at = list.partition_point(|x| x.0 < t);
+                list.insert(at, (t, v));
+            }
+        }
+    }
+
+    /// The vertex on side `bit` at parameter `t` (within `tol`).
+    fn side_vertex(&self, bit: usize, t: f64, tol: f64) -> Option<FixedVertexHandle> {
+        let list = &self.sides[bit];
+        let at = list.partition_point(|x| x.0 < t);
+        [at.wrapping_sub(1), at]
+            .into_iter()
+            .filter_map(|k| list.get(k))
+            .filter(|x| (x.0 - t).abs() <= tol)
+            .min_by(|x, y| (x.0 - t).abs().total_cmp(&(y.0 - t).abs()))
+            .map(|x| x.1)
+    }
+
+    /// Insert `m` on constraint edge `e` (splitting it in two) with the
+    /// given lock bits, and queue what changed.
+    fn insert_on_constraint(
+        &mut self,
+        e: FixedUndirectedEdgeHandle,
+        m: Point2<f64>,
+        lock: u64,
+    ) -> bool {
+        let d = self.cdt.directed_edge(e.as_directed());
+        let [va, vb] = d.vertices();
+        let (a, b) = (va.fix(), vb.fix());
+        let (da, db) = (*va.data(), *vb.data());
         let ends = if da.pv == NONE {
             da.ends
         } else if db.pv == NONE {
@@ -553,6 +683,7 @@ impl<'a> Refiner<'a> {
             bg,
             pv: NONE,
             ends,
+            lock,
         };
         let n0 = self.cdt.num_vertices();
         let on_edge = matches!(
@@ -591,6 +722,9 @@ impl<'a> Refiner<'a> {
         };
         if self.cdt.num_vertices() == n0 {
             return false;
+        }
+        if lock != 0 {
+            self.index_side_vertex(v, lock);
         }
         // New faces, the two halves and the constraints facing the new vertex.
         let mut segs = Vec::new();

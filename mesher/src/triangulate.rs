@@ -17,6 +17,7 @@ use spade::{Point2, Triangulation};
 
 use crate::domain::{Domain, PolyLoop, SegInfo, OUTER_OWNER, OUTSIDE};
 use crate::geometry::{GeometryError, Outline, Point};
+use crate::matched::{MatchedLine, MatchedPair, Plan};
 use crate::mesh::{BoundaryEdge, Mesh, MeshError, RefinementReport};
 use crate::refine::{MeshCdt, MeshVertex, Refiner, NONE};
 use crate::sizefield::{label_components, Pslg, SizeField};
@@ -49,6 +50,9 @@ pub struct MeshInput {
     pub chord_fraction: f64,
     /// Refuse inputs estimated to need more triangles than this.
     pub max_triangles: usize,
+    /// Straight outer segments that must carry identical nodes (periodic
+    /// boundaries); empty by default.
+    pub matched: Vec<MatchedPair>,
 }
 
 impl MeshInput {
@@ -64,6 +68,7 @@ impl MeshInput {
             growth: 1.3,
             chord_fraction: 2e-3,
             max_triangles: 5_000_000,
+            matched: Vec::new(),
         }
     }
 }
@@ -151,6 +156,7 @@ pub fn mesh(input: &MeshInput) -> Result<Mesh, MeshError> {
             limit,
         });
     }
+    let matched = crate::matched::validate(&input.outer, &input.matched)?;
     let shapes: Vec<(&Outline, f64)> = input
         .shapes
         .iter()
@@ -163,7 +169,13 @@ pub fn mesh(input: &MeshInput) -> Result<Mesh, MeshError> {
         input.growth,
         input.chord_fraction,
     );
-    run(domain, input.min_angle_deg, input.max_triangles, start)
+    run(
+        domain,
+        input.min_angle_deg,
+        input.max_triangles,
+        &matched,
+        start,
+    )
 }
 
 fn perimeter(o: &Outline) -> f64 {
@@ -261,7 +273,7 @@ pub fn mesh_disc_with_fixed_rim(
             limit: 5.0e7,
         });
     }
-    run(domain, min_angle_deg, 50_000_000, start)
+    run(domain, min_angle_deg, 50_000_000, &[], start)
 }
 
 /// Cut one PSLG edge `a -> b` so that each piece is about the local size.
@@ -308,6 +320,7 @@ fn run(
     mut domain: Domain,
     min_angle_deg: f64,
     max_triangles: usize,
+    matched: &[MatchedLine],
     start: Instant,
 ) -> Result<Mesh, MeshError> {
     let caps = domain.refine_for_features();
@@ -321,7 +334,8 @@ fn run(
             limit,
         });
     }
-    let (mut cdt, scale) = build_cdt(domain, &field, &pslg)?;
+    let plan = crate::matched::plan(matched, &pslg, &field, split_points)?;
+    let (mut cdt, scale) = build_cdt(domain, &field, &pslg, &plan)?;
 
     let max_vertices = cdt.num_vertices() + max_triangles.max(16);
     let mut refiner = Refiner::new(
@@ -332,6 +346,7 @@ fn run(
         1e-10 * scale,
         domain.fixed_boundary,
         max_vertices,
+        matched.to_vec(),
     );
     refiner.seed();
     let outcome = refiner.run();
@@ -342,6 +357,7 @@ fn run(
         ));
     }
     let mut mesh = extract(domain, &cdt)?;
+    crate::matched::check(&mesh, matched)?;
 
     mesh.report = RefinementReport {
         complete: outcome.met && pslg.small_angles.is_empty() && outcome.skipped_small_angle == 0,
@@ -352,7 +368,12 @@ fn run(
 }
 
 /// Insert the cut input edges into one constrained triangulation.
-fn build_cdt(domain: &Domain, field: &SizeField, pslg: &Pslg) -> Result<(MeshCdt, f64), MeshError> {
+fn build_cdt(
+    domain: &Domain,
+    field: &SizeField,
+    pslg: &Pslg,
+    plan: &Plan,
+) -> Result<(MeshCdt, f64), MeshError> {
     let mut cdt = MeshCdt::new();
     let mut handle_of: Vec<Option<FixedVertexHandle>> = vec![None; pslg.points.len()];
     let mut last: Option<FixedVertexHandle> = None;
@@ -374,7 +395,7 @@ fn build_cdt(domain: &Domain, field: &SizeField, pslg: &Pslg) -> Result<(MeshCdt
         Ok(r)
     };
     let mut chains: Vec<Vec<FixedVertexHandle>> = Vec::with_capacity(pslg.edges.len());
-    for &[a, b] in &pslg.edges {
+    for (edge, &[a, b]) in pslg.edges.iter().enumerate() {
         let mut chain = Vec::new();
         for (i, end) in [a, b].into_iter().enumerate() {
             let e = end as usize;
@@ -388,6 +409,7 @@ fn build_cdt(domain: &Domain, field: &SizeField, pslg: &Pslg) -> Result<(MeshCdt
                         bg,
                         pv: end,
                         ends: [NONE; 2],
+                        lock: plan.vertex_lock[e],
                     };
                     let h = insert(&mut cdt, v)?;
                     handle_of[e] = Some(h);
@@ -396,9 +418,16 @@ fn build_cdt(domain: &Domain, field: &SizeField, pslg: &Pslg) -> Result<(MeshCdt
             };
             if i == 0 {
                 chain.push(h);
-                if !domain.fixed_boundary {
-                    let (pa, pb) = (pslg.points[a as usize], pslg.points[b as usize]);
-                    for p in split_points(field, pa, pb, pslg.bg[a as usize]) {
+                let (pa, pb) = (pslg.points[a as usize], pslg.points[b as usize]);
+                let cut = match &plan.edge_points[edge] {
+                    Some(points) => points.clone(),
+                    None if !domain.fixed_boundary => {
+                        split_points(field, pa, pb, pslg.bg[a as usize])
+                    }
+                    None => Vec::new(),
+                };
+                {
+                    for p in cut {
                         let (size, bg) = field.size_at(p, pslg.bg[a as usize]);
                         let v = MeshVertex {
                             pos: Point2::new(p[0], p[1]),
@@ -406,6 +435,7 @@ fn build_cdt(domain: &Domain, field: &SizeField, pslg: &Pslg) -> Result<(MeshCdt
                             bg,
                             pv: NONE,
                             ends: [a, b],
+                            lock: plan.edge_lock[edge],
                         };
                         chain.push(insert(&mut cdt, v)?);
                     }

@@ -330,6 +330,51 @@ pub fn problem<'m>(model: &Model, mesh: &'m Mesh) -> Result<ProblemSetup<'m>, St
     })
 }
 
+/// The outer segments of every periodic / anti-periodic `[[edge]]` with
+/// their partners, for the mesher to cut alike. Stretches that do not
+/// resolve are left out here (the study reports them).
+pub(crate) fn matched_pairs(model: &Model) -> Vec<fluxwright_mesher::MatchedPair> {
+    let segments = outer_segments(&model.outer.outline);
+    let mut pairs = Vec::new();
+    for e in &model.edges {
+        let (EdgeKind::Periodic { partner } | EdgeKind::AntiPeriodic { partner }) = &e.kind else {
+            continue;
+        };
+        let (Ok(on), Ok(other)) = (
+            stretch_segments(&segments, e.from, e.to),
+            stretch_segments(&segments, partner[0], partner[1]),
+        ) else {
+            continue;
+        };
+        if on.len() != other.len() {
+            continue;
+        }
+        // `from` corresponds to the partner's `from`: a segment runs
+        // "forward" when it goes the way of its stretch.
+        let forward = |s: u32, from: Point, to: Point| {
+            let (a, b, _) = segments[s as usize];
+            (b[0] - a[0]) * (to[0] - from[0]) + (b[1] - a[1]) * (to[1] - from[1]) > 0.0
+        };
+        for (&s, &p) in on.iter().zip(&other) {
+            // A pair given twice (A with B and B with A) is matched once.
+            let taken = |x: u32| {
+                pairs
+                    .iter()
+                    .any(|q: &fluxwright_mesher::MatchedPair| q.segment == x || q.partner == x)
+            };
+            if s == p || taken(s) || taken(p) {
+                continue;
+            }
+            pairs.push(fluxwright_mesher::MatchedPair {
+                segment: s,
+                partner: p,
+                reversed: forward(s, e.from, e.to) != forward(p, partner[0], partner[1]),
+            });
+        }
+    }
+    pairs
+}
+
 /// The outer outline's segments in the mesher's numbering (all loops, in
 /// order), as (start, end, is_straight).
 fn outer_segments(outline: &Outline) -> Vec<(Point, Point, bool)> {

@@ -226,7 +226,8 @@ impl Model {
     }
 
     /// The mesher's input: the outer outline, the shapes in drawing order
-    /// with their sizes, and the quality targets, all in model units.
+    /// with their sizes, the quality targets, all in model units, and the
+    /// outer segments of periodic / anti-periodic pairs (meshed alike).
     /// `MeshInput::shapes[i]` is `self.shapes[i]`.
     pub fn mesh_input(&self) -> MeshInput {
         MeshInput {
@@ -244,6 +245,7 @@ impl Model {
             growth: self.mesh.growth,
             chord_fraction: self.mesh.chord_fraction,
             max_triangles: self.mesh.max_triangles,
+            matched: crate::study::matched_pairs(self),
         }
     }
 
