@@ -263,17 +263,7 @@ fn write_mesh_files(model: &Model, mesh: &Mesh, seconds: f64, staging: &mut Stag
         shapes,
     };
 
-    let shape_index: Vec<i32> = mesh
-        .regions
-        .iter()
-        .map(|&r| {
-            if r == Mesh::OUTER_REGION {
-                -1
-            } else {
-                r as i32
-            }
-        })
-        .collect();
+    let shape_index = shape_indices(mesh);
     let min_angle: Vec<f64> = (0..mesh.triangles.len())
         .map(|t| {
             mesh.triangle_angles(t)
@@ -414,17 +404,7 @@ fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
     // exterior that an open boundary appends to the mesh.
     let n_tri = model_mesh.triangles.len();
     let fields = &solution.element_fields()[..n_tri];
-    let shape_index: Vec<i32> = model_mesh
-        .regions
-        .iter()
-        .map(|&r| {
-            if r == Mesh::OUTER_REGION {
-                -1
-            } else {
-                r as i32
-            }
-        })
-        .collect();
+    let shape_index = shape_indices(&model_mesh);
     let view_dofs = ViewDofs::new(&solution, n_tri, model.unit_to_m());
     let potential: Vec<f64> = view_dofs
         .kept
@@ -514,6 +494,20 @@ fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
         );
         Ok(3)
     }
+}
+
+/// The shape index of each triangle for VTK files, −1 for the outer region.
+fn shape_indices(mesh: &Mesh) -> Vec<i32> {
+    mesh.regions
+        .iter()
+        .map(|&r| {
+            if r == Mesh::OUTER_REGION {
+                -1
+            } else {
+                r as i32
+            }
+        })
+        .collect()
 }
 
 /// The model's own part of a mesh that may end with the Kelvin image.

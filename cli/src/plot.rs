@@ -88,22 +88,7 @@ pub fn mesh_png(path: &Path, pic: &MeshPicture) -> Result<()> {
     root.fill(&WHITE).map_err(plot_err)?;
     let (left, right) = root.split_horizontally(plot_w);
     let (x0, x1, y0, y1) = equal_aspect(lo, hi, (plot_w - 90) as f64, (height - 110) as f64);
-    let mut chart = ChartBuilder::on(&left)
-        .caption(pic.title, (FONT, 26))
-        .margin(12)
-        .x_label_area_size(40)
-        .y_label_area_size(60)
-        .build_cartesian_2d(x0..x1, y0..y1)
-        .map_err(plot_err)?;
-    chart
-        .configure_mesh()
-        .disable_mesh()
-        .x_desc(format!("x ({})", pic.unit))
-        .y_desc(format!("y ({})", pic.unit))
-        .label_style((FONT, 15))
-        .axis_desc_style((FONT, 17))
-        .draw()
-        .map_err(plot_err)?;
+    let mut chart = plane_chart(&left, pic.title, 26, pic.unit, [x0, x1, y0, y1])?;
     let colours: Vec<RGBColor> = (0..pic.regions.len())
         .map(|i| region_colour(pic.regions, i))
         .collect();
@@ -188,6 +173,43 @@ pub fn mesh_png(path: &Path, pic: &MeshPicture) -> Result<()> {
         .map_err(plot_err)?;
     root.present().map_err(plot_err)?;
     Ok(())
+}
+
+type PlaneChart<'a, DB> = ChartContext<
+    'a,
+    DB,
+    Cartesian2d<plotters::coord::types::RangedCoordf64, plotters::coord::types::RangedCoordf64>,
+>;
+
+/// A chart of the model plane with equal-aspect ranges `[x0, x1, y0, y1]`,
+/// axes labelled in `unit`, and no grid.
+fn plane_chart<'a, DB: DrawingBackend>(
+    area: &'a DrawingArea<DB, plotters::coord::Shift>,
+    title: &str,
+    title_size: u32,
+    unit: &str,
+    [x0, x1, y0, y1]: [f64; 4],
+) -> Result<PlaneChart<'a, DB>>
+where
+    DB::ErrorType: 'static,
+{
+    let mut chart = ChartBuilder::on(area)
+        .caption(title, (FONT, title_size))
+        .margin(12)
+        .x_label_area_size(40)
+        .y_label_area_size(60)
+        .build_cartesian_2d(x0..x1, y0..y1)
+        .map_err(plot_err)?;
+    chart
+        .configure_mesh()
+        .disable_mesh()
+        .x_desc(format!("x ({unit})"))
+        .y_desc(format!("y ({unit})"))
+        .label_style((FONT, 15))
+        .axis_desc_style((FONT, 17))
+        .draw()
+        .map_err(plot_err)?;
+    Ok(chart)
 }
 
 /// A raster placed with its top-left corner at `top_left` (data coordinates).
@@ -308,22 +330,7 @@ where
         .filter(|&c| visible(&pic.cells[c]))
         .collect();
     let top = scale_top(shown.iter().map(|&c| pic.cell_values[c]).collect());
-    let mut chart = ChartBuilder::on(&left)
-        .caption(pic.title, (FONT, 24))
-        .margin(12)
-        .x_label_area_size(40)
-        .y_label_area_size(60)
-        .build_cartesian_2d(x0..x1, y0..y1)
-        .map_err(plot_err)?;
-    chart
-        .configure_mesh()
-        .disable_mesh()
-        .x_desc(format!("x ({})", pic.unit))
-        .y_desc(format!("y ({})", pic.unit))
-        .label_style((FONT, 15))
-        .axis_desc_style((FONT, 17))
-        .draw()
-        .map_err(plot_err)?;
+    let mut chart = plane_chart(&left, pic.title, 24, pic.unit, [x0, x1, y0, y1])?;
     let (pw, ph) = chart.plotting_area().dim_in_pixel();
     let shading = crate::raster::fill(
         pw,
