@@ -280,6 +280,30 @@ impl Domain {
         caps
     }
 
+    /// Whether segments `a` and `b` are both arcs of the same circle.
+    fn same_circle(&self, a: u32, b: u32) -> bool {
+        match (self.curves[a as usize], self.curves[b as usize]) {
+            (
+                Some(Segment::Arc {
+                    center: ca,
+                    radius: ra,
+                    ..
+                }),
+                Some(Segment::Arc {
+                    center: cb,
+                    radius: rb,
+                    ..
+                }),
+            ) => {
+                let tol = 1e-9 * ra.max(rb);
+                (ca[0] - cb[0]).abs() <= tol
+                    && (ca[1] - cb[1]).abs() <= tol
+                    && (ra - rb).abs() <= tol
+            }
+            _ => false,
+        }
+    }
+
     /// Size cap from the local feature size at every vertex of every loop:
     /// the distance to the nearest input segment that is neither the
     /// vertex's own segment nor joined to it, over
@@ -324,6 +348,11 @@ impl Domain {
                         || (!corner
                             && (self.segs[own[0] as usize].prev == s
                                 || self.segs[own[0] as usize].next == s))
+                        // Two arcs of one circle (a magnet sitting on a
+                        // rotor) are chords of the same curve: their
+                        // distance is the chord error, not a thin gap, and
+                        // refining for it never ends.
+                        || own.iter().any(|&o| self.same_circle(o, s))
                 };
                 // Only features closer than this can lower the size.
                 let radius = ELEMENTS_ACROSS_FEATURE * l.own_size.min(self.max_size);

@@ -633,3 +633,53 @@ fn triangle_estimate_is_close() {
     inp.max_triangles = m.triangles.len() / 3;
     assert!(matches!(mesh(&inp), Err(MeshError::TooLarge { .. })));
 }
+
+/// Regression: two arcs on one circle (a magnet sector sitting on a rotor
+/// sector) made the feature-size search refine forever, because the chords
+/// of the two arcs are a chord error apart and looked like a thin gap. It
+/// must now finish and give a valid mesh whose shape areas are the exact
+/// sector areas ½θ(R² − r²) within the chord error.
+#[test]
+fn arcs_on_one_circle_finish_with_a_valid_mesh() {
+    use fluxwright_mesher::{mesh, MeshInput, Outline, ShapeInput};
+    let outer = Outline::circle([0.0, 0.0], 40.0).unwrap();
+    let mut input = MeshInput::new(outer, 4.0);
+    let ring = Outline::sector([0.0, 0.0], 5.0, 25.0, 0.0, 90.0).unwrap();
+    let magnet = Outline::sector([0.0, 0.0], 25.0, 30.0, 20.0, 70.0).unwrap();
+    input.shapes.push(ShapeInput {
+        outline: ring,
+        mesh_size: 2.0,
+    });
+    input.shapes.push(ShapeInput {
+        outline: magnet,
+        mesh_size: 1.0,
+    });
+    let start = std::time::Instant::now();
+    let m = mesh(&input).expect("meshes");
+    assert!(
+        start.elapsed().as_secs_f64() < 20.0,
+        "took {:?}",
+        start.elapsed()
+    );
+    m.check().unwrap();
+    let area = |r: u32| {
+        m.region_areas()
+            .iter()
+            .filter(|(k, _)| *k == r)
+            .map(|(_, a)| a)
+            .sum::<f64>()
+    };
+    let exact_ring = 0.5 * std::f64::consts::FRAC_PI_2 * (25.0f64 * 25.0 - 25.0);
+    let exact_magnet = 0.5 * (50f64).to_radians() * (30.0f64 * 30.0 - 25.0 * 25.0);
+    // Chord error: at most chord_fraction · r² · sweep per arc (see above).
+    assert!(
+        (area(0) - exact_ring).abs() < 2e-3 * 900.0 * 3.2,
+        "{} vs {exact_ring}",
+        area(0)
+    );
+    assert!(
+        (area(1) - exact_magnet).abs() < 2e-3 * 900.0 * 3.2,
+        "{} vs {exact_magnet}",
+        area(1)
+    );
+}
