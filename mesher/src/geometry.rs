@@ -101,8 +101,12 @@ impl Segment {
 }
 
 pub(crate) fn polar(center: Point, radius: f64, angle: f64) -> Point {
+    // Degrees converted to radians miss quarter turns by one rounding, so
+    // cos 90° comes out as 6e-17: make those zeros exact, so that a sector
+    // bounded by the axis of an axisymmetric model puts its points on x = 0.
+    let exact = |v: f64| if v.abs() < 1e-15 { 0.0 } else { v };
     let (s, c) = angle.sin_cos();
-    [center[0] + radius * c, center[1] + radius * s]
+    [center[0] + radius * exact(c), center[1] + radius * exact(s)]
 }
 
 /// A closed loop: each segment ends where the next starts, the last ends at

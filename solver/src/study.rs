@@ -100,17 +100,6 @@ pub struct ModelMesh {
 /// is open.
 pub fn mesh_for(model: &Model) -> Result<ModelMesh, StudyError> {
     let mut mesh = fluxwright_mesher::mesh(&model.mesh_input())?;
-    if matches!(model.symmetry, ModelSymmetry::Axisymmetric) {
-        // Outline points on the axis come out at x ≈ 1e-16 (cos 90°); put them
-        // exactly on it, where the field evaluation treats r = 0 as the axis.
-        let (lo, hi) = model.outer.outline.bounding_box();
-        let tol = 1e-9 * (hi[0] - lo[0]).max(hi[1] - lo[1]);
-        for p in &mut mesh.nodes {
-            if p[0].abs() <= tol {
-                p[0] = 0.0;
-            }
-        }
-    }
     let (model_nodes, model_triangles) = (mesh.nodes.len(), mesh.triangles.len());
     let mut exterior = None;
     if let Some(plan) = open_exterior(model)? {
