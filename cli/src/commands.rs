@@ -191,13 +191,18 @@ fn build_mesh(model: &Model) -> Result<(Mesh, f64)> {
     let start = Instant::now();
     let mesh = fluxwright_mesher::mesh(&model.mesh_input())
         .map_err(|e| Failure::input(format!("{}: meshing failed: {e}", model.source)))?;
+    check_mesh(model, &mesh)?;
+    Ok((mesh, start.elapsed().as_secs_f64()))
+}
+
+/// Mesh invariants hold for any valid model; a failure is our bug.
+fn check_mesh(model: &Model, mesh: &Mesh) -> Result<()> {
     mesh.check().with_context(|| {
         format!(
             "{}: the mesh failed its own checks (a bug; please report it)",
             model.source
         )
-    })?;
-    Ok((mesh, start.elapsed().as_secs_f64()))
+    })
 }
 
 fn region_name(model: &Model, region: u32) -> String {
@@ -378,12 +383,7 @@ fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
     let start = Instant::now();
     let mm = study::mesh_for(model)
         .map_err(|e| Failure::input(format!("{}: meshing failed: {e}", model.source)))?;
-    mm.mesh.check().with_context(|| {
-        format!(
-            "{}: the mesh failed its own checks (a bug; please report it)",
-            model.source
-        )
-    })?;
+    check_mesh(model, &mm.mesh)?;
     let mesh_seconds = start.elapsed().as_secs_f64();
     let model_mesh = model_part(&mm);
     let setup = study::problem(model, &mm.mesh)
