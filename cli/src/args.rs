@@ -2,6 +2,7 @@
 //! `commands`.
 
 use clap::{Parser, Subcommand};
+use fluxwright_solver::sweep::Shard;
 use std::path::PathBuf;
 
 /// 2D magnetostatic finite-element analysis of iron-cored devices.
@@ -15,6 +16,10 @@ pub struct Cli {
     /// What to do.
     #[command(subcommand)]
     pub command: Command,
+    /// Worker threads for assembly, post-processing and sweep steps
+    /// (default: one per core).
+    #[arg(long, global = true, value_name = "N", value_parser = clap::value_parser!(u16).range(1..))]
+    pub threads: Option<u16>,
 }
 
 /// The subcommands.
@@ -45,6 +50,30 @@ pub enum Command {
         /// e.g. on a gap.
         #[arg(long, value_name = "X0,Y0,X1,Y1", value_parser = parse_view, allow_hyphen_values = true)]
         view: Option<[f64; 4]>,
+    },
+    /// Solve the model's [sweep] (a current, move or turn range), one full
+    /// solve a step; write sweep.csv, sweep.png, sweep.json and each step's
+    /// results under steps/.
+    Sweep {
+        /// The model file (.toml), with a [sweep] table.
+        model: PathBuf,
+        /// Output directory (created if missing).
+        #[arg(short, long, value_name = "DIR")]
+        out: PathBuf,
+        /// Solve only shard K of N (every N-th block of steps), to spread
+        /// one sweep over machines; join the folders with `merge`.
+        #[arg(long, value_name = "K/N", value_parser = parse_shard)]
+        shard: Option<Shard>,
+    },
+    /// Join the output folders of a sharded sweep into one, identical to an
+    /// unsharded run.
+    Merge {
+        /// The shards' output folders.
+        #[arg(required = true, value_name = "DIR")]
+        shards: Vec<PathBuf>,
+        /// Output directory for the joined sweep.
+        #[arg(short, long, value_name = "DIR")]
+        out: PathBuf,
     },
     /// List the built-in typical materials (for `from_library`), or show one
     /// with its B-H points.
@@ -84,4 +113,26 @@ fn parse_view(s: &str) -> Result<[f64; 4], String> {
             v.len()
         )),
     }
+}
+
+/// Parse `K/N` (1 ≤ K ≤ N) into a 0-based shard.
+fn parse_shard(s: &str) -> Result<Shard, String> {
+    let (k, n) = s
+        .split_once('/')
+        .ok_or_else(|| format!("expected K/N such as 2/8, got `{s}`"))?;
+    let k: usize = k
+        .trim()
+        .parse()
+        .map_err(|_| format!("`{k}` is not a whole number"))?;
+    let n: usize = n
+        .trim()
+        .parse()
+        .map_err(|_| format!("`{n}` is not a whole number"))?;
+    if n == 0 || k == 0 || k > n {
+        return Err(format!("shard {k} of {n}: need 1 ≤ K ≤ N"));
+    }
+    Ok(Shard {
+        index: k - 1,
+        count: n,
+    })
 }

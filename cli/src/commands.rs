@@ -21,6 +21,12 @@ const DEMO_NAME: &str = "demo/door_holder.toml (built in)";
 
 /// Run a parsed command line; returns the exit code.
 pub fn run(cli: Cli) -> Result<u8> {
+    if let Some(n) = cli.threads {
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(usize::from(n))
+            .build_global()
+            .context("cannot set up the worker threads")?;
+    }
     match cli.command {
         Command::Check { model } => check(&model),
         Command::Mesh { model, out } => {
@@ -31,6 +37,11 @@ pub fn run(cli: Cli) -> Result<u8> {
             let model = load_model(&model)?;
             solve(&model, &out, view)
         }
+        Command::Sweep { model, out, shard } => {
+            let model = load_model(&model)?;
+            crate::sweep::sweep(&model, &out, shard)
+        }
+        Command::Merge { shards, out } => crate::sweep::merge(&shards, &out),
         Command::Materials { name } => materials(name.as_deref()),
         Command::Demo { out, save_model } => demo(&out, save_model.as_deref()),
     }

@@ -9,6 +9,7 @@ mod commands;
 mod output;
 mod plot;
 mod raster;
+mod sweep;
 mod vtu;
 
 use clap::Parser;

@@ -108,6 +108,19 @@ impl<'p> Solution<'p> {
         self.tangent = Mutex::new(cache);
     }
 
+    /// Take the linear solver the solve kept (with its symbolic analysis),
+    /// to start the next solve on the same mesh with
+    /// [`crate::nonlinear::solve_from`]. Later tangent solves of this
+    /// solution analyse afresh.
+    pub fn take_solver(&self) -> Option<Box<dyn SpdSolver>> {
+        let mut cache = match self.tangent.lock() {
+            Ok(c) => c,
+            Err(poisoned) => poisoned.into_inner(),
+        };
+        cache.factored = false;
+        cache.solver.take()
+    }
+
     /// Solve K_t x = b in place for each right-hand side, with K_t the
     /// reduced tangent matrix (Jacobian of the residual) at the solution;
     /// vectors are in reduced unknowns (length `assembler().constraints.n_free`).
@@ -296,6 +309,10 @@ impl<'p> Solution<'p> {
                     })
                     .sum::<f64>()
             })
+            .collect::<Vec<f64>>()
+            // Summed in element order: the same bits whatever the threads
+            // (sweep shards must agree to the last digit).
+            .iter()
             .sum()
     }
 
@@ -333,6 +350,8 @@ impl<'p> Solution<'p> {
                     })
                     .sum::<f64>()
             })
+            .collect::<Vec<f64>>()
+            .iter()
             .sum::<f64>()
             .sqrt()
     }

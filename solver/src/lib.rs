@@ -56,3 +56,4 @@ pub mod nonlinear;
 pub mod post;
 pub mod problem;
 pub mod study;
+pub mod sweep;

@@ -142,6 +142,11 @@ impl FaerCholesky {
 
 impl SpdSolver for FaerCholesky {
     fn analyze(&mut self, pattern: &SparsityPattern) -> Result<(), LinearError> {
+        if self.symbolic.is_some() && self.pattern.as_ref() == Some(pattern) {
+            // Same pattern (the next step of a sweep, say): keep the analysis.
+            self.factored = false;
+            return Ok(());
+        }
         let sym = SymbolicSparseColMatRef::new_checked(
             pattern.n,
             pattern.n,

@@ -11,6 +11,7 @@
 //! Problems with only linear materials take exactly one solve.
 
 use crate::assembly::Assembler;
+use crate::boundary::DofTarget;
 use crate::field::{Solution, TangentCache};
 use crate::linear::{FaerCholesky, SpdSolver};
 use crate::problem::{Problem, SolveError};
@@ -114,11 +115,28 @@ pub fn solve<'p>(
     problem: &'p Problem<'p>,
     options: &NewtonOptions,
 ) -> Result<Solution<'p>, SolveError> {
-    let mut solver = FaerCholesky::default();
-    let (mut solution, values, factored) = run(problem, options, &mut solver)?;
+    solve_from(problem, options, Box::new(FaerCholesky::default()), None)
+}
+
+/// Solve `problem` with `solver`, starting Newton from `start` when given:
+/// a full dof vector on the same dofs (a neighbouring sweep step's
+/// potential, say); its fixed values are replaced by this problem's. The
+/// stopping rule stays relative to the residual at the cold start (fixed
+/// values, zero elsewhere), so a warm start stops at the same accuracy.
+///
+/// `solver` keeps its symbolic analysis when it was last analysed for the
+/// same pattern. The solution keeps the solver for tangent solves; take it
+/// back with [`Solution::take_solver`] for the next solve.
+pub fn solve_from<'p>(
+    problem: &'p Problem<'p>,
+    options: &NewtonOptions,
+    mut solver: Box<dyn SpdSolver>,
+    start: Option<&[f64]>,
+) -> Result<Solution<'p>, SolveError> {
+    let (mut solution, values, factored) = run(problem, options, solver.as_mut(), start)?;
     solution.set_tangent(TangentCache {
         values: Some(values),
-        solver: Some(Box::new(solver)),
+        solver: Some(solver),
         factored,
     });
     Ok(solution)
@@ -131,7 +149,7 @@ pub fn solve_with<'p>(
     options: &NewtonOptions,
     solver: &mut dyn SpdSolver,
 ) -> Result<Solution<'p>, SolveError> {
-    let (mut solution, values, _) = run(problem, options, solver)?;
+    let (mut solution, values, _) = run(problem, options, solver, None)?;
     solution.set_tangent(TangentCache {
         values: Some(values),
         solver: None,
@@ -146,6 +164,7 @@ fn run<'p>(
     problem: &'p Problem<'p>,
     options: &NewtonOptions,
     solver: &mut dyn SpdSolver,
+    guess_start: Option<&[f64]>,
 ) -> Result<(Solution<'p>, Vec<f64>, bool), SolveError> {
     let start = Instant::now();
     let assembler = Assembler::new(problem)?;
@@ -170,9 +189,22 @@ fn run<'p>(
 
     let clock = Instant::now();
     assembler.assemble(&u, Some(&mut values), &mut residual);
-    timings.assembly_s += clock.elapsed().as_secs_f64();
     let reference = norm(&residual);
-    report.residual_history.push(1.0);
+    let warm = match guess_start {
+        Some(guess) if guess.len() == u.len() && n > 0 && reference > 0.0 => {
+            reduce(&assembler.constraints.target, guess, &mut x);
+            assembler.constraints.expand(&x, &mut u);
+            assembler.assemble(&u, Some(&mut values), &mut residual);
+            true
+        }
+        _ => false,
+    };
+    timings.assembly_s += clock.elapsed().as_secs_f64();
+    report.residual_history.push(if warm {
+        norm(&residual) / reference
+    } else {
+        1.0
+    });
     if reference == 0.0 || n == 0 {
         // Nothing drives the field (or nothing is free): u₀ is the answer.
         report.converged = true;
@@ -180,7 +212,14 @@ fn run<'p>(
         report.timings = timings;
         return Ok((Solution::new(assembler, u, report), values, false));
     }
-    let mut current = reference;
+    let mut current = norm(&residual);
+    if warm && current <= options.residual_tolerance * reference {
+        // The start already solves this problem (a repeated sweep value).
+        report.converged = true;
+        report.relative_residual = current / reference;
+        report.timings = timings;
+        return Ok((Solution::new(assembler, u, report), values, false));
+    }
     let mut trial_x = vec![0.0; n];
     let mut trial_u = u.clone();
     let mut trial_r = vec![0.0; n];
@@ -328,6 +367,21 @@ fn energy_line_search(
         }
     }
     (best.0, best.1)
+}
+
+/// Reduced unknowns from a full dof vector: each free unknown takes the
+/// value of the first dof that maps to it.
+fn reduce(targets: &[DofTarget], u: &[f64], x: &mut [f64]) {
+    let mut seen = vec![false; x.len()];
+    for (&ui, t) in u.iter().zip(targets) {
+        if let DofTarget::Free { index, sign } = *t {
+            let i = index as usize;
+            if !seen[i] {
+                seen[i] = true;
+                x[i] = sign * ui;
+            }
+        }
+    }
 }
 
 fn norm(v: &[f64]) -> f64 {
