@@ -469,12 +469,15 @@ fn print_table(table: &Table) {
     }
 }
 
+/// One picture panel: title, unit, and the (legend, column) of each series.
+type Panel = (String, String, Vec<(String, usize)>);
+
 /// One panel a quantity: energy, each winding's λ, each winding's L and
 /// dλ/dI, each force, each torque, each probe's |B|.
 fn sweep_png(path: &Path, title: &str, parameter: &str, table: &Table) -> Result<()> {
     ensure_font()?;
     let x: Vec<Option<f64>> = table.numbers(1);
-    let mut panels: Vec<(String, String, Vec<(String, usize)>)> = vec![(
+    let mut panels: Vec<Panel> = vec![(
         "stored energy and co-energy".into(),
         "J".into(),
         vec![("energy".into(), 5), ("co-energy".into(), 6)],
