@@ -2,7 +2,8 @@
 //! factorisation, triangular solve and the full nonlinear solve, P1 and P2,
 //! at about 10k and 100k unknowns (1M with `FLUXWRIGHT_BENCH_1M=1`, slow).
 //!
-//! Ids: `assemble/p1/n=…`, `analyze/p1/n=…`, `factor/p2/n=…`,
+//! Ids: `assemble/p1/n=…`, `analyze/p1/n=…`, `factor/p2/n=…` (default
+//! ordering), `analyze-nd/…`, `factor-nd/…` (coordinate nested dissection),
 //! `substitute/p1/n=…` (forward and back substitution with the factor),
 //! `solve/p1/n=…` (Newton) where n is the number of reduced unknowns. The problem: a square of side 0.2 m (zero
 //! potential around it) holding an iron frame with a gapped centre leg,
@@ -12,7 +13,7 @@
 use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion};
 use fluxwright_solver::assembly::Assembler;
 use fluxwright_solver::fe::structured::rectangle;
-use fluxwright_solver::linear::{FaerCholesky, SpdSolver};
+use fluxwright_solver::linear::{FaerCholesky, FillOrdering, Par, SpdSolver};
 use fluxwright_solver::material::{BhCurve, Material};
 use fluxwright_solver::nonlinear::{solve, NewtonOptions};
 use fluxwright_solver::problem::*;
@@ -133,6 +134,24 @@ fn bench(c: &mut Criterion) {
                     solver.solve(&mut rhs).expect("factored")
                 })
             },
+        );
+        // The coordinate nested dissection ordering, same pattern and values.
+        let points = asm.unknown_points();
+        let mut nd = FaerCholesky::with_ordering(Par::Seq, FillOrdering::CoordinateDissection);
+        group.bench_function(
+            BenchmarkId::new(format!("analyze-nd/{}", name(order)), n),
+            |b| {
+                b.iter(|| {
+                    // A fresh solver: the same pattern would keep its analysis.
+                    nd = FaerCholesky::with_ordering(Par::Seq, FillOrdering::CoordinateDissection);
+                    nd.analyze_with_points(&asm.pattern, &points)
+                        .expect("analysis")
+                })
+            },
+        );
+        group.bench_function(
+            BenchmarkId::new(format!("factor-nd/{}", name(order)), n),
+            |b| b.iter(|| nd.factor(&values).expect("SPD")),
         );
         group.bench_function(BenchmarkId::new(format!("solve/{}", name(order)), n), |b| {
             b.iter(|| {

@@ -9,7 +9,7 @@ use crate::Failure;
 use anyhow::{Context, Result};
 use fluxwright_mesher::Mesh;
 use fluxwright_solver::model::{Model, ModelSource};
-use fluxwright_solver::{nonlinear, study};
+use fluxwright_solver::{adapt, study};
 use serde::Serialize;
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
@@ -382,32 +382,67 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
     println!(
         "                 the 240 A-turns of the coil side it encloses; the mismatch says how well"
     );
+    println!("                 the mesh resolves the field along that path");
+    println!(
+        "  estimated error  the field's relative error in the energy norm, estimated from how far"
+    );
+    println!(
+        "                 the element-wise B differs from a smoothed B (Zienkiewicz-Zhu); local"
+    );
+    println!("                 numbers such as the gap probe or the force can be off by more");
     println!("  profile        B along a line through the gap, as CSV and a plot under profiles/");
     println!("  Newton steps   iterations of the nonlinear solve for the saturating steel, to a 1e-8 residual");
     println!("Open fields.vtu in ParaView to see |B|, B, H and μr per triangle.");
     Ok(code)
 }
 
-/// Mesh, solve and write results.json and fields.vtu (and the mesh files). Exit code 3 when
-/// Newton did not converge (the results are still written, marked).
+/// Mesh, solve (adapting the mesh for `[mesh] adapt` rounds, one line each)
+/// and write results.json and fields.vtu (and the mesh files). Exit code 3
+/// when Newton did not converge (the results are still written, marked).
 fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
     let start = Instant::now();
-    let mm = study::mesh_for(model)
-        .map_err(|e| Failure::input(format!("{}: meshing failed: {e}", model.source)))?;
-    check_mesh(model, &mm.mesh)?;
-    let mesh_seconds = start.elapsed().as_secs_f64();
-    let model_mesh = model_part(&mm);
-    let setup = study::problem(model, &mm.mesh)
-        .map_err(|e| Failure::input(format!("{}: {e}", model.source)))?;
-    let solution = nonlinear::solve(&setup.problem, &Default::default())
-        .map_err(|e| Failure::input(format!("{}: the solve failed: {e}", model.source)))?;
-    let results = study::results(
+    let on_round = |r: &adapt::AdaptRound, _: &fluxwright_solver::field::Solution| {
+        if model.mesh.adapt > 0 {
+            println!(
+                "{}: adapt round {}: {} triangles, {} unknowns, estimated error {:.2e}",
+                model.source, r.round, r.triangles, r.unknowns, r.error_estimate
+            );
+        }
+    };
+    adapt::mesh_and_solve_adaptive(model, &Default::default(), on_round, |a| {
+        write_solved(model, out, view, start, a)
+    })
+    .map_err(|e| match e {
+        adapt::AdaptError::MeshCheck(e) => anyhow::Error::new(e).context(format!(
+            "{}: the mesh failed its own checks (a bug; please report it)",
+            model.source
+        )),
+        e => Failure::input(format!("{}: {e}", model.source)).into(),
+    })?
+}
+
+/// The output of [`solve`] from its last (or only) round.
+fn write_solved(
+    model: &Model,
+    out: &Path,
+    view: Option<[f64; 4]>,
+    start: Instant,
+    adapted: adapt::Adapted<'_>,
+) -> Result<u8> {
+    let (mm, setup, solution) = (adapted.mesh, adapted.setup, adapted.solution);
+    let mesh_seconds = adapted.mesh_seconds;
+    let model_mesh = model_part(mm);
+    let mut results = study::results(
         model,
         &mm.mesh,
-        &setup,
-        &solution,
+        setup,
+        solution,
         start.elapsed().as_secs_f64(),
     );
+    if model.mesh.adapt > 0 {
+        results.adapt = adapted.rounds;
+        results.notes.extend(adapted.stopped);
+    }
 
     let mut staging = Staging::new(out)?;
     write_mesh_files(model, &model_mesh, mesh_seconds, &mut staging)?;
@@ -416,7 +451,7 @@ fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
     let n_tri = model_mesh.triangles.len();
     let fields = &solution.element_fields()[..n_tri];
     let shape_index = shape_indices(&model_mesh);
-    let view_dofs = ViewDofs::new(&solution, n_tri, model.unit_to_m());
+    let view_dofs = ViewDofs::new(solution, n_tri, model.unit_to_m());
     let potential: Vec<f64> = view_dofs
         .kept
         .iter()
@@ -457,15 +492,8 @@ fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
         ],
     );
     staging.write("fields.vtu", doc.as_bytes())?;
-    write_field_map(
-        model,
-        &model_mesh,
-        &solution,
-        &view_dofs,
-        view,
-        &mut staging,
-    )?;
-    for (name, samples) in study::profile_samples(model, &solution) {
+    write_field_map(model, &model_mesh, solution, &view_dofs, view, &mut staging)?;
+    for (name, samples) in study::profile_samples(model, solution) {
         let file = study::profile_file(&name);
         staging.write(
             &file,
@@ -603,12 +631,24 @@ fn print_results(model: &Model, r: &study::SolveResults) {
     } else {
         "for the full turn"
     };
+    if let Some(e) = r.solve.error_estimate {
+        println!(
+            "  estimated error {:.2} % (relative, energy norm)",
+            100.0 * e
+        );
+    }
     println!("  stored energy   {:.6e} J ({per})", r.energy_j);
     println!("  co-energy       {:.6e} J", r.coenergy_j);
     for (name, p) in &r.probes {
+        let (b, h) = (p.b_t, p.h_a_per_m);
+        let (b_size, h_size) = (b[0].hypot(b[1]), h[0].hypot(h[1]));
         println!(
-            "  probe {name}: |B| = {:.4} T, B = ({:.4}, {:.4}) T, H = ({:.4e}, {:.4e}) A/m",
-            p.b_magnitude_t, p.b_t[0], p.b_t[1], p.h_a_per_m[0], p.h_a_per_m[1]
+            "  probe {name}: |B| = {} T, B = ({}, {}) T, H = ({}, {}) A/m",
+            four_digits(p.b_magnitude_t, b_size),
+            four_digits(b[0], b_size),
+            four_digits(b[1], b_size),
+            four_digits(h[0], h_size),
+            four_digits(h[1], h_size),
         );
     }
     for (name, w) in &r.windings {
@@ -641,6 +681,21 @@ fn print_results(model: &Model, r: &study::SolveResults) {
     }
     for n in &r.notes {
         println!("  note: {n}");
+    }
+}
+
+/// `x` to four significant digits, fixed-point between 10⁻³ and 10⁵ and
+/// with an exponent outside; "0" when it is below 10⁻⁹ of `scale` (the
+/// rounding noise of a component that is zero by symmetry).
+fn four_digits(x: f64, scale: f64) -> String {
+    let size = x.abs();
+    if size <= 1e-9 * scale || size == 0.0 {
+        "0".into()
+    } else if (1e-3..1e5).contains(&size) {
+        let decimals = (3 - size.log10().floor() as i32).max(0) as usize;
+        format!("{x:.decimals$}")
+    } else {
+        format!("{x:.3e}")
     }
 }
 
@@ -776,4 +831,21 @@ fn materials(name: Option<&str>) -> Result<u8> {
     }
     println!("\nCaution: these are typical values for first sketches. Real material data should come from the supplier's data sheet.");
     Ok(0)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::four_digits;
+
+    #[test]
+    fn four_digits_keeps_small_fields_readable() {
+        assert_eq!(four_digits(0.5573, 0.56), "0.5573");
+        assert_eq!(four_digits(443480.0, 443480.0), "4.435e5");
+        assert_eq!(four_digits(12.3456, 12.0), "12.35");
+        // A 2 mT stray field must not print as 0.0000.
+        assert_eq!(four_digits(0.0021, 0.0021), "0.002100");
+        assert_eq!(four_digits(3.2e-6, 3.2e-6), "3.200e-6");
+        // Rounding noise of a component that is zero by symmetry.
+        assert_eq!(four_digits(-1.1e-17, 0.56), "0");
+    }
 }

@@ -291,3 +291,58 @@ fn materials_lists_the_library_and_shows_one_with_its_source() {
     assert_eq!(out.status.code(), Some(1));
     assert!(stderr(&out).contains("unobtainium"));
 }
+
+#[test]
+fn solve_with_adapt_writes_every_round_with_falling_estimates() {
+    // A round conductor in a zero-potential circle, meshed coarsely, with
+    // two rounds of adaptation towards a target it cannot reach in two.
+    let dir = scratch("adapt");
+    let path = write(
+        &dir,
+        "wire.toml",
+        r#"
+[model]
+element_order = 1
+[mesh]
+max_size = 8
+adapt = 2
+target_error = 0.02
+[[shape]]
+name = "wire"
+circle = { center = [0, 0], radius = 10 }
+current = 100
+[outer]
+shape = { circle = { center = [0, 0], radius = 30 } }
+condition = "zero-potential"
+"#,
+    );
+    let out_dir = dir.join("out");
+    let out = fluxwright(&[
+        "solve",
+        path.to_str().unwrap(),
+        "-o",
+        out_dir.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(stdout.matches("adapt round").count(), 3, "{stdout}");
+    let results: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out_dir.join("results.json")).unwrap())
+            .unwrap();
+    let rounds = results["adapt"].as_array().expect("an `adapt` list");
+    assert_eq!(rounds.len(), 3);
+    for (k, w) in rounds.windows(2).enumerate() {
+        assert_eq!(w[1]["round"], k as u64 + 1);
+        assert!(w[1]["triangles"].as_u64() > w[0]["triangles"].as_u64());
+        assert!(w[1]["unknowns"].as_u64() > w[0]["unknowns"].as_u64());
+        let (a, b) = (
+            w[0]["error_estimate"].as_f64().unwrap(),
+            w[1]["error_estimate"].as_f64().unwrap(),
+        );
+        assert!(b < a, "estimates {a} then {b}");
+    }
+    // The results are those of the last round.
+    let last = &rounds[2];
+    assert_eq!(results["mesh"]["triangles"], last["triangles"]);
+    assert_eq!(results["solve"]["error_estimate"], last["error_estimate"]);
+}

@@ -219,12 +219,18 @@ impl Domain {
 
     /// Add polyline points where a thin feature is sampled too coarsely to
     /// be seen (two long parallel edges sampled only at their ends), and
-    /// return the final feature caps of [`Domain::feature_caps`].
-    pub(crate) fn refine_for_features(&mut self) -> Vec<Vec<f64>> {
+    /// return the final feature caps of [`Domain::feature_caps`]; or, as
+    /// soon as the loops hold more than `max_points` points, that number
+    /// (the mesh would be too large, and the caps of many points in narrow
+    /// gaps are slow to find).
+    pub(crate) fn refine_for_features(
+        &mut self,
+        max_points: usize,
+    ) -> Result<Vec<Vec<f64>>, usize> {
         let mut caps = self.feature_caps(None);
         for _round in 0..4 {
             if self.fixed_boundary {
-                return caps;
+                return Ok(caps);
             }
             let mut changed = false;
             let mut known = Vec::with_capacity(caps.len());
@@ -272,12 +278,16 @@ impl Domain {
                 known.push(old);
             }
             if !changed {
-                return caps;
+                return Ok(caps);
+            }
+            let points = self.loops.iter().map(|l| l.points.len()).sum::<usize>();
+            if points > max_points {
+                return Err(points);
             }
             // Only the new points need their caps (NaN marks them).
             caps = self.feature_caps(Some(known));
         }
-        caps
+        Ok(caps)
     }
 
     /// Whether segments `a` and `b` are both arcs of the same circle.

@@ -117,7 +117,29 @@ fn check_quality(growth: f64, min_angle_deg: f64) -> Result<(), MeshError> {
 /// most `growth − 1` per unit of distance, and thin gaps and shells get about
 /// three elements across.
 pub fn mesh(input: &MeshInput) -> Result<Mesh, MeshError> {
+    mesh_with_size_hints(input, &[])
+}
+
+/// [`mesh`] under a background size field from the caller: each hint
+/// `(point, size)` caps the element size at that point (the shapes' sizes
+/// and `max_size` still cap it too, so hints only make elements smaller),
+/// and sizes grade away from it at `growth` like any other size. Between
+/// hints the size is interpolated on the background triangulation, so hints
+/// should be about as dense as the sizes they ask for (say one per triangle
+/// of a previous mesh). Hints outside the bounding box of the input, or
+/// exactly on an input edge, are ignored. Without hints the mesh is exactly
+/// that of [`mesh`].
+pub fn mesh_with_size_hints(
+    input: &MeshInput,
+    size_hints: &[(Point, f64)],
+) -> Result<Mesh, MeshError> {
     let start = Instant::now();
+    for &(p, size) in size_hints {
+        check_size("size_hints[].size", size)?;
+        if !(p[0].is_finite() && p[1].is_finite()) {
+            return Err(GeometryError::NotFinite.into());
+        }
+    }
     check_size("max_size", input.max_size)?;
     for s in &input.shapes {
         check_size("shapes[].mesh_size", s.mesh_size)?;
@@ -174,6 +196,7 @@ pub fn mesh(input: &MeshInput) -> Result<Mesh, MeshError> {
         input.min_angle_deg,
         input.max_triangles,
         &matched,
+        size_hints,
         start,
     )
 }
@@ -273,7 +296,7 @@ pub fn mesh_disc_with_fixed_rim(
             limit: 5.0e7,
         });
     }
-    run(domain, min_angle_deg, 50_000_000, &[], start)
+    run(domain, min_angle_deg, 50_000_000, &[], &[], start)
 }
 
 /// Cut one PSLG edge `a -> b` so that each piece is about the local size.
@@ -321,13 +344,26 @@ fn run(
     min_angle_deg: f64,
     max_triangles: usize,
     matched: &[MatchedLine],
+    size_hints: &[(Point, f64)],
     start: Instant,
 ) -> Result<Mesh, MeshError> {
-    let caps = domain.refine_for_features();
-    let domain = &domain;
-    let (field, pslg) = SizeField::build(domain, &caps, min_angle_deg)?;
-    let estimate = field.estimate_triangles();
+    // Any triangulation of n points has at least n − 2 triangles: refuse
+    // before the planar graph and size field of too many boundary points.
     let limit = max_triangles as f64;
+    let too_many = |points: usize| MeshError::TooLarge {
+        estimated_triangles: points as f64 - 2.0,
+        limit,
+    };
+    let caps = domain
+        .refine_for_features(max_triangles.saturating_add(2))
+        .map_err(too_many)?;
+    let domain = &domain;
+    let boundary_points = domain.loops.iter().map(|l| l.points.len()).sum::<usize>();
+    if boundary_points > max_triangles.saturating_add(2) {
+        return Err(too_many(boundary_points));
+    }
+    let (field, pslg) = SizeField::build(domain, &caps, min_angle_deg, size_hints)?;
+    let estimate = field.estimate_triangles(limit);
     if !(estimate <= limit) {
         return Err(MeshError::TooLarge {
             estimated_triangles: estimate,
@@ -421,7 +457,10 @@ fn build_cdt(
                 let (pa, pb) = (pslg.points[a as usize], pslg.points[b as usize]);
                 let cut = match &plan.edge_points[edge] {
                     Some(points) => points.clone(),
-                    None if !domain.fixed_boundary => {
+                    // A piece of a shape beyond the outer edge bounds only
+                    // dropped triangles: left uncut (cutting it to the
+                    // feature size of a thin sliver can take 10⁵ points).
+                    None if !domain.fixed_boundary && !field.edge_outside(a, b) => {
                         split_points(field, pa, pb, pslg.bg[a as usize])
                     }
                     None => Vec::new(),

@@ -376,6 +376,25 @@ impl<'p> Assembler<'p> {
         self.images.get(self.image_of[t] as usize)
     }
 
+    /// The position of every reduced unknown, m: that of the first dof
+    /// mapped to it (a periodic or Kelvin-rim pair takes its lower-numbered
+    /// dof's; Kelvin image dofs lie in the image disc beside the model). For
+    /// geometric fill-reducing orderings.
+    pub fn unknown_points(&self) -> Vec<[f64; 2]> {
+        let mut points = vec![[f64::NAN; 2]; self.constraints.n_free];
+        let mut seen = vec![false; self.constraints.n_free];
+        for (d, target) in self.constraints.target.iter().enumerate() {
+            if let DofTarget::Free { index, .. } = *target {
+                let i = index as usize;
+                if !seen[i] {
+                    seen[i] = true;
+                    points[i] = self.dofs.coords[d];
+                }
+            }
+        }
+        points
+    }
+
     /// A full dof vector with the fixed values in place and zero elsewhere.
     pub fn initial_potential(&self) -> Vec<f64> {
         let mut u = vec![0.0; self.dofs.n_dofs];

@@ -44,6 +44,7 @@
 #![deny(missing_docs)]
 #![forbid(unsafe_code)]
 
+pub mod adapt;
 pub mod assembly;
 pub mod boundary;
 pub mod fe;
@@ -53,6 +54,7 @@ pub mod linear;
 pub mod material;
 pub mod model;
 pub mod nonlinear;
+pub mod ordering;
 pub mod post;
 pub mod problem;
 pub mod study;

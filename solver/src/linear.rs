@@ -20,10 +20,12 @@ use faer::linalg::cholesky::llt::factor::LltParams;
 use faer::perm::PermRef;
 use faer::sparse::linalg::cholesky::{
     factorize_symbolic_cholesky, CholeskySymbolicParams, LltRef, SymbolicCholesky,
-    SymmetricOrdering,
+    SymbolicCholeskyRaw, SymmetricOrdering,
 };
 use faer::sparse::{SparseColMatRef, SymbolicSparseColMatRef};
-use faer::{Conj, MatMut, Par, Side, Spec};
+/// faer's parallelism setting, taken by [`FaerCholesky::new`].
+pub use faer::Par;
+use faer::{Conj, MatMut, Side, Spec};
 
 /// Errors of a linear solver.
 #[derive(Debug, thiserror::Error, Clone, PartialEq)]
@@ -72,6 +74,11 @@ pub enum FillOrdering {
     /// contiguous supernodes: without it a METIS order factored 1.5–1.9× slower
     /// at 100k unknowns).
     Custom(Vec<usize>),
+    /// Coordinate nested dissection ([`crate::ordering`]) from one point per
+    /// unknown, given to [`SpdSolver::analyze_with_points`]; postordered like
+    /// [`FillOrdering::Custom`]. Plain [`SpdSolver::analyze`] has no points
+    /// and falls back to [`FillOrdering::Amd`].
+    CoordinateDissection,
 }
 
 /// A direct solver for sparse SPD systems whose upper triangle is given in
@@ -80,6 +87,16 @@ pub trait SpdSolver: Send {
     /// Symbolic analysis of the pattern (ordering, elimination tree); once
     /// per pattern.
     fn analyze(&mut self, pattern: &SparsityPattern) -> Result<(), LinearError>;
+    /// [`SpdSolver::analyze`] with the position of every unknown (`points[i]`
+    /// of unknown i), for orderings that use geometry; others ignore it.
+    fn analyze_with_points(
+        &mut self,
+        pattern: &SparsityPattern,
+        points: &[[f64; 2]],
+    ) -> Result<(), LinearError> {
+        let _ = points;
+        self.analyze(pattern)
+    }
     /// Numeric factorisation of the matrix with these values (one per stored
     /// entry of the analysed pattern).
     fn factor(&mut self, values: &[f64]) -> Result<(), LinearError>;
@@ -138,10 +155,48 @@ impl FaerCholesky {
     pub fn factor_nnz(&self) -> usize {
         self.symbolic.as_ref().map_or(0, |s| s.len_val())
     }
+
+    /// Entries of the lower-triangular factor L (diagonal included, as
+    /// stored by the supernodal structure: relaxed supernodes may hold
+    /// explicit zeros) and Σ c_j² over its columns (c_j entries in column j;
+    /// about the floating-point work of one factorisation), after analysis.
+    pub fn factor_counts(&self) -> (usize, f64) {
+        let Some(symbolic) = &self.symbolic else {
+            return (0, 0.0);
+        };
+        let (mut entries, mut flops) = (0usize, 0.0f64);
+        match symbolic.raw() {
+            SymbolicCholeskyRaw::Supernodal(sn) => {
+                for s in 0..sn.n_supernodes() {
+                    let width = sn.supernode_end()[s] - sn.supernode_begin()[s];
+                    let below = sn.supernode(s).pattern().len();
+                    for i in 0..width {
+                        let c = width - i + below;
+                        entries += c;
+                        flops += (c * c) as f64;
+                    }
+                }
+            }
+            SymbolicCholeskyRaw::Simplicial(sp) => {
+                for w in sp.col_ptr().windows(2) {
+                    let c = w[1] - w[0];
+                    entries += c;
+                    flops += (c * c) as f64;
+                }
+            }
+        }
+        (entries, flops)
+    }
 }
 
-impl SpdSolver for FaerCholesky {
-    fn analyze(&mut self, pattern: &SparsityPattern) -> Result<(), LinearError> {
+impl FaerCholesky {
+    /// Symbolic analysis with this solver's ordering; `points` (one per
+    /// unknown) when the caller has them.
+    fn analyze_at(
+        &mut self,
+        pattern: &SparsityPattern,
+        points: Option<&[[f64; 2]]>,
+    ) -> Result<(), LinearError> {
         if self.symbolic.is_some() && self.pattern.as_ref() == Some(pattern) {
             // Same pattern (the next step of a sweep, say): keep the analysis.
             self.factored = false;
@@ -154,14 +209,23 @@ impl SpdSolver for FaerCholesky {
             None,
             &pattern.row_idx,
         );
-        let symbolic = match &self.ordering {
-            FillOrdering::Amd => factorize_symbolic_cholesky(
+        let dissection;
+        let order = match (&self.ordering, points) {
+            (FillOrdering::Amd, _) | (FillOrdering::CoordinateDissection, None) => None,
+            (FillOrdering::Custom(order), _) => Some(order.as_slice()),
+            (FillOrdering::CoordinateDissection, Some(points)) => {
+                dissection = crate::ordering::coordinate_dissection(pattern, points)?;
+                Some(dissection.as_slice())
+            }
+        };
+        let symbolic = match order {
+            None => factorize_symbolic_cholesky(
                 sym,
                 Side::Upper,
                 SymmetricOrdering::Amd,
                 CholeskySymbolicParams::default(),
             ),
-            FillOrdering::Custom(order) => {
+            Some(order) => {
                 let inverse = inverse_permutation(order, pattern.n)?;
                 let (forward, inverse) = postorder(pattern, order, inverse);
                 let perm = PermRef::new_checked(&forward, &inverse, pattern.n);
@@ -184,6 +248,20 @@ impl SpdSolver for FaerCholesky {
         self.pattern = Some(pattern.clone());
         self.factored = false;
         Ok(())
+    }
+}
+
+impl SpdSolver for FaerCholesky {
+    fn analyze(&mut self, pattern: &SparsityPattern) -> Result<(), LinearError> {
+        self.analyze_at(pattern, None)
+    }
+
+    fn analyze_with_points(
+        &mut self,
+        pattern: &SparsityPattern,
+        points: &[[f64; 2]],
+    ) -> Result<(), LinearError> {
+        self.analyze_at(pattern, Some(points))
     }
 
     fn factor(&mut self, values: &[f64]) -> Result<(), LinearError> {

@@ -99,7 +99,17 @@ pub struct ModelMesh {
 /// Mesh `model`, with the Kelvin image of the exterior when the outer edge
 /// is open.
 pub fn mesh_for(model: &Model) -> Result<ModelMesh, StudyError> {
-    let mut mesh = fluxwright_mesher::mesh(&model.mesh_input())?;
+    mesh_for_with_size_hints(model, &[])
+}
+
+/// [`mesh_for`] with size hints for the model's part
+/// ([`fluxwright_mesher::mesh_with_size_hints`]; the exterior's image grades
+/// from its rim as usual).
+pub fn mesh_for_with_size_hints(
+    model: &Model,
+    size_hints: &[(Point, f64)],
+) -> Result<ModelMesh, StudyError> {
+    let mut mesh = fluxwright_mesher::mesh_with_size_hints(&model.mesh_input(), size_hints)?;
     let (model_nodes, model_triangles) = (mesh.nodes.len(), mesh.triangles.len());
     let mut exterior = None;
     if let Some(plan) = open_exterior(model)? {
@@ -446,6 +456,10 @@ pub struct SolveResults {
     pub profiles: BTreeMap<String, String>,
     /// Assumptions made (e.g. how the open boundary was modelled).
     pub notes: Vec<String>,
+    /// The rounds of error-driven adaptation (`[mesh] adapt`), the last
+    /// being the solution reported; left out when the model does not adapt.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub adapt: Vec<crate::adapt::AdaptRound>,
 }
 
 /// `results.model`.
@@ -486,7 +500,8 @@ pub struct SolveInfo {
     pub relative_residual: f64,
     /// Wall-clock seconds of mesh and solve.
     pub seconds: f64,
-    /// Estimated relative energy error (not computed yet: null).
+    /// Estimated relative energy error of the model's own region
+    /// ([`crate::post::estimate::zienkiewicz_zhu`]).
     pub error_estimate: Option<f64>,
     /// ‖R‖/‖R₀‖ before the first step and after each step.
     pub residual_history: Vec<f64>,
@@ -725,7 +740,7 @@ pub fn results(
             iterations: report.iterations,
             relative_residual: report.relative_residual,
             seconds,
-            error_estimate: None,
+            error_estimate: Some(crate::post::estimate::zienkiewicz_zhu(solution).relative()),
             residual_history: report.residual_history.clone(),
             timings_s: TimingsInfo {
                 setup: report.timings.setup_s,
@@ -744,6 +759,7 @@ pub fn results(
         loops,
         profiles,
         notes,
+        adapt: Vec::new(),
     }
 }
 
