@@ -4,6 +4,7 @@
 use crate::args::{Cli, Command};
 use crate::output::Staging;
 use crate::plot::{self, FieldPicture, MeshPicture, RegionStyle};
+use crate::progress::SolveBar;
 use crate::vtu;
 use crate::Failure;
 use anyhow::{Context, Result};
@@ -401,18 +402,20 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
 /// when Newton did not converge (the results are still written, marked).
 fn solve(model: &Model, out: &Path, view: Option<[f64; 4]>) -> Result<u8> {
     let start = Instant::now();
+    let bar = SolveBar::new();
     let on_round = |r: &adapt::AdaptRound, _: &fluxwright_solver::field::Solution| {
         if model.mesh.adapt > 0 {
-            println!(
+            bar.println(&format!(
                 "{}: adapt round {}: {} triangles, {} unknowns, estimated error {:.2e}",
                 model.source, r.round, r.triangles, r.unknowns, r.error_estimate
-            );
+            ));
         }
     };
-    adapt::mesh_and_solve_adaptive(model, &Default::default(), on_round, |a| {
-        write_solved(model, out, view, start, a)
-    })
-    .map_err(|e| match e {
+    let written = adapt::mesh_and_solve_adaptive(model, &Default::default(), &bar, on_round, |a| {
+        write_solved(model, out, view, start, a, &bar)
+    });
+    bar.clear();
+    written.map_err(|e| match e {
         adapt::AdaptError::MeshCheck(e) => anyhow::Error::new(e).context(format!(
             "{}: the mesh failed its own checks (a bug; please report it)",
             model.source
@@ -428,7 +431,9 @@ fn write_solved(
     view: Option<[f64; 4]>,
     start: Instant,
     adapted: adapt::Adapted<'_>,
+    bar: &SolveBar,
 ) -> Result<u8> {
+    bar.writing();
     let (mm, setup, solution) = (adapted.mesh, adapted.setup, adapted.solution);
     let mesh_seconds = adapted.mesh_seconds;
     let model_mesh = model_part(mm);
@@ -522,6 +527,7 @@ fn write_solved(
     )?;
     staging.commit()?;
 
+    bar.clear();
     print_results(model, &results);
     println!("wrote {}", out.display());
     if results.solve.converged {
@@ -685,11 +691,12 @@ fn print_results(model: &Model, r: &study::SolveResults) {
 }
 
 /// `x` to four significant digits, fixed-point between 10⁻³ and 10⁵ and
-/// with an exponent outside; "0" when it is below 10⁻⁹ of `scale` (the
-/// rounding noise of a component that is zero by symmetry).
+/// with an exponent outside; "0" when it is below 10⁻⁶ of `scale` (the
+/// solver's noise in a component that is zero by symmetry, far below the
+/// four digits shown of the vector's size).
 fn four_digits(x: f64, scale: f64) -> String {
     let size = x.abs();
-    if size <= 1e-9 * scale || size == 0.0 {
+    if size <= 1e-6 * scale || size == 0.0 {
         "0".into()
     } else if (1e-3..1e5).contains(&size) {
         let decimals = (3 - size.log10().floor() as i32).max(0) as usize;
@@ -847,5 +854,6 @@ mod tests {
         assert_eq!(four_digits(3.2e-6, 3.2e-6), "3.200e-6");
         // Rounding noise of a component that is zero by symmetry.
         assert_eq!(four_digits(-1.1e-17, 0.56), "0");
+        assert_eq!(four_digits(1.085e-8, 0.9881), "0");
     }
 }

@@ -8,6 +8,7 @@ mod colormap;
 mod commands;
 mod output;
 mod plot;
+mod progress;
 mod raster;
 mod sweep;
 mod vtu;

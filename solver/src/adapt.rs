@@ -21,10 +21,12 @@
 //! mesh is solved once.
 
 use crate::field::Solution;
+use crate::linear::FaerCholesky;
 use crate::model::Model;
 use crate::nonlinear::{self, NewtonOptions};
 use crate::post::estimate::{self, ErrorEstimate};
 use crate::problem::SolveError;
+use crate::progress::{Phase, Progress};
 use crate::study::{self, ModelMesh, ProblemSetup, StudyError};
 use fluxwright_mesher::{MeshError, Point};
 use serde::Serialize;
@@ -88,21 +90,35 @@ pub struct Adapted<'a> {
 
 /// Mesh and solve `model`, adapting the mesh for up to `model.mesh.adapt`
 /// rounds (none when 0: one mesh, one solve), calling `on_round` with each
-/// round and its solution and `finish` with the last one.
+/// round and its solution and `finish` with the last one; phases and
+/// Newton steps go to `progress`.
 pub fn mesh_and_solve_adaptive<R>(
     model: &Model,
     options: &NewtonOptions,
+    progress: &dyn Progress,
     mut on_round: impl FnMut(&AdaptRound, &Solution<'_>),
     finish: impl FnOnce(Adapted<'_>) -> R,
 ) -> Result<R, AdaptError> {
     let start = Instant::now();
+    progress.phase(Phase::Meshing { round: 0 });
     let mut mm = study::mesh_for(model).map_err(AdaptError::Mesh)?;
     mm.mesh.check().map_err(AdaptError::MeshCheck)?;
     let mut mesh_seconds = start.elapsed().as_secs_f64();
     let mut rounds = Vec::new();
     loop {
         let setup = study::problem(model, &mm.mesh).map_err(AdaptError::Problem)?;
-        let solution = nonlinear::solve(&setup.problem, options).map_err(AdaptError::Solve)?;
+        progress.phase(Phase::Solving {
+            round: rounds.len() as u32,
+            triangles: mm.model_triangles,
+        });
+        let solution = nonlinear::solve_observed(
+            &setup.problem,
+            options,
+            Box::new(FaerCholesky::default()),
+            None,
+            progress,
+        )
+        .map_err(AdaptError::Solve)?;
         let estimate = estimate::zienkiewicz_zhu(&solution);
         let round = AdaptRound {
             round: rounds.len() as u32,
@@ -128,6 +144,9 @@ pub fn mesh_and_solve_adaptive<R>(
                 model.mesh.target_error,
             );
             let remesh_start = Instant::now();
+            progress.phase(Phase::Meshing {
+                round: round.round + 1,
+            });
             match study::mesh_for_with_size_hints(model, &hints)
                 .map_err(AdaptError::Mesh)
                 .and_then(|m| m.mesh.check().map(|_| m).map_err(AdaptError::MeshCheck))

@@ -57,5 +57,6 @@ pub mod nonlinear;
 pub mod ordering;
 pub mod post;
 pub mod problem;
+pub mod progress;
 pub mod study;
 pub mod sweep;

@@ -15,6 +15,7 @@ use crate::boundary::DofTarget;
 use crate::field::{Solution, TangentCache};
 use crate::linear::{FaerCholesky, SpdSolver};
 use crate::problem::{Problem, SolveError};
+use crate::progress::{NewtonStep, Progress, Silent};
 use std::time::Instant;
 
 /// Largest relative residual accepted after the single solve of a linear
@@ -130,10 +131,21 @@ pub fn solve<'p>(
 pub fn solve_from<'p>(
     problem: &'p Problem<'p>,
     options: &NewtonOptions,
-    mut solver: Box<dyn SpdSolver>,
+    solver: Box<dyn SpdSolver>,
     start: Option<&[f64]>,
 ) -> Result<Solution<'p>, SolveError> {
-    let (mut solution, values, factored) = run(problem, options, solver.as_mut(), start)?;
+    solve_observed(problem, options, solver, start, &Silent)
+}
+
+/// [`solve_from`], telling `progress` about each Newton step.
+pub fn solve_observed<'p>(
+    problem: &'p Problem<'p>,
+    options: &NewtonOptions,
+    mut solver: Box<dyn SpdSolver>,
+    start: Option<&[f64]>,
+    progress: &dyn Progress,
+) -> Result<Solution<'p>, SolveError> {
+    let (mut solution, values, factored) = run(problem, options, solver.as_mut(), start, progress)?;
     solution.set_tangent(TangentCache {
         values: Some(values),
         solver: Some(solver),
@@ -149,7 +161,7 @@ pub fn solve_with<'p>(
     options: &NewtonOptions,
     solver: &mut dyn SpdSolver,
 ) -> Result<Solution<'p>, SolveError> {
-    let (mut solution, values, _) = run(problem, options, solver, None)?;
+    let (mut solution, values, _) = run(problem, options, solver, None, &Silent)?;
     solution.set_tangent(TangentCache {
         values: Some(values),
         solver: None,
@@ -165,6 +177,7 @@ fn run<'p>(
     options: &NewtonOptions,
     solver: &mut dyn SpdSolver,
     guess_start: Option<&[f64]>,
+    progress: &dyn Progress,
 ) -> Result<(Solution<'p>, Vec<f64>, bool), SolveError> {
     let start = Instant::now();
     let assembler = Assembler::new(problem)?;
@@ -282,6 +295,11 @@ fn run<'p>(
         let relative = current / reference;
         report.residual_history.push(relative);
         report.relative_residual = relative;
+        progress.newton_step(NewtonStep {
+            iteration: report.iterations,
+            relative_residual: relative,
+            tolerance: options.residual_tolerance,
+        });
         if linear {
             // A direct solve leaves a rounding-level residual; a large one
             // means the system was too ill-conditioned to trust.

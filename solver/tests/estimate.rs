@@ -13,6 +13,7 @@ use fluxwright_solver::adapt::{mesh_and_solve_adaptive, AdaptRound};
 use fluxwright_solver::field::Solution;
 use fluxwright_solver::model::{Model, ModelSource};
 use fluxwright_solver::post::estimate::{relative_energy_error, zienkiewicz_zhu};
+use fluxwright_solver::progress::Silent;
 use fluxwright_solver::{nonlinear, study};
 use std::f64::consts::PI;
 
@@ -317,6 +318,7 @@ fn adapt_rounds(model: &Model) -> Vec<(AdaptRound, f64)> {
     let rounds = mesh_and_solve_adaptive(
         model,
         &Default::default(),
+        &Silent,
         |r, s| seen.push((*r, true_error(s, conductor_b))),
         |a| a.rounds,
     )
@@ -369,6 +371,7 @@ fn adapt_zero_is_the_plain_solve() {
     let (adapted, rounds) = mesh_and_solve_adaptive(
         &model,
         &Default::default(),
+        &Silent,
         |_, _| (),
         |a| {
             assert_eq!(a.mesh.mesh.nodes, mm.mesh.nodes);
