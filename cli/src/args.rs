@@ -7,11 +7,16 @@ use std::path::PathBuf;
 
 /// 2D magnetostatic finite-element analysis of iron-cored devices.
 ///
-/// Describe a device cross-section in a model file (TOML), then check it,
-/// mesh it or solve it. Coordinates are in the model's `length_unit`; every
-/// other number is SI.
+/// Describe a device cross-section (planar with a depth, or axisymmetric) in
+/// a model file (TOML), then check it, mesh it, solve it or sweep it.
+/// Coordinates are in the model's `length_unit`; every other number is SI.
 #[derive(Parser, Debug)]
-#[command(name = "fluxwright", version, about, long_about = None, propagate_version = true)]
+#[command(
+    name = "fluxwright",
+    version,
+    propagate_version = true,
+    after_help = "First steps:\n  fluxwright demo -o out/demo                  solve the built-in example and explain its numbers\n  fluxwright demo --save-model magnet.toml     ... and keep its model file to edit\n  fluxwright check magnet.toml                 validate your model, list what it holds\n  fluxwright solve magnet.toml -o out/magnet   results.json, field.png, fields.vtu\n\nExit codes: 0 done; 1 bad input (the message names the file, line and key); 3 Newton did not converge (results are written, marked converged = false)."
+)]
 pub struct Cli {
     /// What to do.
     #[command(subcommand)]
@@ -34,18 +39,18 @@ pub enum Command {
     Mesh {
         /// The model file (.toml).
         model: PathBuf,
-        /// Output directory (created if missing).
+        /// Output directory (created if missing; default out/<model name>).
         #[arg(short, long, value_name = "DIR")]
-        out: PathBuf,
+        out: Option<PathBuf>,
     },
-    /// Mesh and solve a model; write results.json, fields.vtu (ParaView) and
-    /// the mesh files.
+    /// Mesh and solve a model; write results.json, field.png, fields.vtu
+    /// (ParaView), the profiles and the mesh files.
     Solve {
         /// The model file (.toml).
         model: PathBuf,
-        /// Output directory (created if missing).
+        /// Output directory (created if missing; default out/<model name>).
         #[arg(short, long, value_name = "DIR")]
-        out: PathBuf,
+        out: Option<PathBuf>,
         /// Zoom the field map on a window x0,y0,x1,y1 (model length units),
         /// e.g. on a gap.
         #[arg(long, value_name = "X0,Y0,X1,Y1", value_parser = parse_view, allow_hyphen_values = true)]
@@ -57,9 +62,10 @@ pub enum Command {
     Sweep {
         /// The model file (.toml), with a [sweep] table.
         model: PathBuf,
-        /// Output directory (created if missing).
+        /// Output directory (created if missing; default out/<model name>-sweep,
+        /// or out/<model name>-sweep-K-of-N for a shard).
         #[arg(short, long, value_name = "DIR")]
-        out: PathBuf,
+        out: Option<PathBuf>,
         /// Solve only shard K of N (every N-th block of steps), to spread
         /// one sweep over machines; join the folders with `merge`.
         #[arg(long, value_name = "K/N", value_parser = parse_shard)]

@@ -30,16 +30,29 @@ pub fn run(cli: Cli) -> Result<u8> {
     }
     match cli.command {
         Command::Check { model } => check(&model),
-        Command::Mesh { model, out } => {
-            let model = load_model(&model)?;
-            mesh(&model, &out)
+        Command::Mesh { model: file, out } => {
+            let model = load_model(&file)?;
+            mesh(&model, &out.unwrap_or_else(|| default_out(&file, "")))
         }
-        Command::Solve { model, out, view } => {
-            let model = load_model(&model)?;
-            solve(&model, &out, view)
+        Command::Solve {
+            model: file,
+            out,
+            view,
+        } => {
+            let model = load_model(&file)?;
+            solve(&model, &out.unwrap_or_else(|| default_out(&file, "")), view)
         }
-        Command::Sweep { model, out, shard } => {
-            let model = load_model(&model)?;
+        Command::Sweep {
+            model: file,
+            out,
+            shard,
+        } => {
+            let model = load_model(&file)?;
+            let suffix = match shard {
+                Some(s) => format!("-sweep-{}-of-{}", s.index + 1, s.count),
+                None => "-sweep".into(),
+            };
+            let out = out.unwrap_or_else(|| default_out(&file, &suffix));
             crate::sweep::sweep(&model, &out, shard)
         }
         Command::Merge { shards, out } => crate::sweep::merge(&shards, &out),
@@ -395,6 +408,15 @@ fn demo(out: &Path, save_model: Option<&Path>) -> Result<u8> {
     println!("  Newton steps   iterations of the nonlinear solve for the saturating steel, to a 1e-8 residual");
     println!("Open fields.vtu in ParaView to see |B|, B, H and μr per triangle.");
     Ok(code)
+}
+
+/// out/<file stem><suffix>: where a run goes when `--out` is not given.
+fn default_out(model_file: &Path, suffix: &str) -> PathBuf {
+    let stem = model_file
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "model".into());
+    Path::new("out").join(format!("{stem}{suffix}"))
 }
 
 /// Mesh, solve (adapting the mesh for `[mesh] adapt` rounds, one line each)

@@ -346,3 +346,17 @@ condition = "zero-potential"
     assert_eq!(results["mesh"]["triangles"], last["triangles"]);
     assert_eq!(results["solve"]["error_estimate"], last["error_estimate"]);
 }
+
+/// Without `-o`, `mesh` writes to out/<model name> under the working folder.
+#[test]
+fn mesh_without_out_writes_to_out_and_the_model_name() {
+    let dir = scratch("default-out");
+    let model = Path::new(env!("CARGO_MANIFEST_DIR")).join("../examples/busbars.toml");
+    let status = Command::new(env!("CARGO_BIN_EXE_fluxwright"))
+        .current_dir(&dir)
+        .args(["mesh", model.to_str().expect("utf-8 path")])
+        .status()
+        .expect("run fluxwright");
+    assert!(status.success());
+    assert!(dir.join("out/busbars/mesh.json").is_file());
+}
