@@ -413,5 +413,15 @@ fn holding_magnet_loop_and_pole_face_pull() {
             -force[1]
         );
         assert!(force[0].abs() < 0.01 * pull, "sideways {} N", force[0]);
+        // With no current anywhere, ∫B·H dV = 0 over all space (H is curl
+        // free and B solenoidal; a standard vector identity, from memory),
+        // and W + W′ = ∫B·H dV, so the co-energy is minus the energy. The
+        // discrete solution keeps it to the Newton tolerance.
+        assert!(
+            (r.energy_j + r.coenergy_j).abs() < 1e-6 * r.energy_j,
+            "energy {} J, co-energy {} J",
+            r.energy_j,
+            r.coenergy_j
+        );
     });
 }
