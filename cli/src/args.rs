@@ -15,7 +15,7 @@ use std::path::PathBuf;
     name = "fluxwright",
     version,
     propagate_version = true,
-    after_help = "First steps:\n  fluxwright demo -o out/demo                  solve the built-in example and explain its numbers\n  fluxwright demo --save-model magnet.toml     ... and keep its model file to edit\n  fluxwright check magnet.toml                 validate your model, list what it holds\n  fluxwright solve magnet.toml -o out/magnet   results.json, field.png, fields.vtu\n\nExit codes: 0 done; 1 bad input (the message names the file, line and key); 3 Newton did not converge (results are written, marked converged = false)."
+    after_help = "First steps:\n  fluxwright demo -o out/demo                  solve the built-in example and explain its numbers\n  fluxwright demo --save-model magnet.toml     ... and keep its model file to edit\n  fluxwright check magnet.toml                 validate your model, list what it holds\n  fluxwright solve magnet.toml -o out/magnet   results.json, field.png, fields.vtu\n\nExit codes: 0 done; 1 bad input (the message names the file, line and key); 2 usage; 3 Newton did not converge (results are written, marked converged = false)."
 )]
 pub struct Cli {
     /// What to do.
