@@ -98,14 +98,13 @@ pub fn sweep(model: &Model, out: &Path, shard: Option<Shard>) -> Result<u8> {
     staging.commit()?;
 
     print_table(&table);
-    let remeshed = steps
-        .iter()
-        .filter(|s| s.mesh == sweep::StepMesh::Fresh)
-        .count();
+    let count = |kind: sweep::StepMesh| steps.iter().filter(|s| s.mesh == kind).count();
     if !matches!(spec, Sweep::Current { .. }) {
         println!(
-            "  meshes: {remeshed} made afresh, {} steps blended from them",
-            steps.len() - remeshed
+            "  meshes: {} made afresh, {} steps blended, {} blended and reconnected in the moving band",
+            count(sweep::StepMesh::Fresh),
+            count(sweep::StepMesh::Blended),
+            count(sweep::StepMesh::Reconnected),
         );
     }
     match shard {

@@ -14,7 +14,12 @@
 //! harmonic blend (a weight solving Laplace's equation on the air, 1 on the
 //! moving parts, 0 on the fixed parts and the outer edge), so results vary
 //! smoothly from step to step. When the blend would distort some element too
-//! much, that step is meshed afresh and later steps blend from the new mesh.
+//! much, the same nodes at their blended places are reconnected: the
+//! deforming band (air, and fixed shapes the moving ones are drawn over) is
+//! triangulated anew on its nodes with its outline kept
+//! ([`fluxwright_mesher::reconnect`]), so the mesh changes only by edge
+//! flips in the band where it shears, and later steps blend from that mesh.
+//! Only when that too gives poor elements is a step meshed afresh.
 
 use crate::field::Solution;
 use crate::linear::{FaerCholesky, SpdSolver};
@@ -22,9 +27,10 @@ use crate::model::{EdgeKind, Excitation, Model, Permeability, Sweep};
 use crate::nonlinear::{self, NewtonOptions};
 use crate::problem::SolveError;
 use crate::study::{self, ModelMesh, SolveResults, StudyError};
-use fluxwright_mesher::{Mesh, Point, Segment};
+use fluxwright_mesher::{reconnect, Mesh, Point, Segment};
 use rayon::prelude::*;
 use std::borrow::Cow;
+use std::collections::HashMap;
 use std::time::Instant;
 
 /// Neighbouring steps solved one after another in one block (warm starts).
@@ -35,6 +41,15 @@ pub const BLOCK_STEPS: usize = 4;
 /// before the step is meshed afresh (common practice for mesh morphing, no
 /// source: the solution error grows with the angle lost).
 const BLEND_ANGLE_FRACTION: f64 = 0.6;
+
+/// Harmonic weights below this stay 0 and above 1 − this become 1, with a
+/// linear ramp between (common practice for sliding bands, no source:
+/// nodes next to a part keep their place relative to it).
+const WEIGHT_RAMP: f64 = 0.2;
+
+/// Rounds of leaving out nodes next to poor elements in a reconnection
+/// before the step is meshed afresh instead.
+const RECONNECT_ROUNDS: usize = 8;
 
 /// One shard of a sweep: every `count`-th block, starting at block `index`
 /// (0-based).
@@ -63,8 +78,14 @@ pub enum StepMesh {
     /// Meshed afresh for this step's geometry (a move or turn sweep's first
     /// step, or one where blending would distort the mesh too much).
     Fresh,
-    /// The last fresh mesh with its nodes blended to this step's geometry.
+    /// The last fresh or reconnected mesh with its nodes blended to this
+    /// step's geometry.
     Blended,
+    /// The previous step's mesh, its nodes blended to this step's geometry
+    /// and the deforming band between moving and fixed parts triangulated
+    /// anew on the same nodes (no node added; a few air nodes dropped where
+    /// elements would be too poor).
+    Reconnected,
 }
 
 /// One solved step.
@@ -280,7 +301,7 @@ impl Plan {
                     value,
                     source,
                 })?;
-            let blend = Blend::new(model, sweep, &mm);
+            let blend = Blend::new(model, sweep, &mm, None);
             Ok(Base { value, mm, blend })
         };
         let mut bases = vec![fresh(0)?];
@@ -300,6 +321,9 @@ impl Plan {
                 .is_some_and(|b| b.keeps_quality(&base.mm.mesh, value - base.value));
             if fits {
                 steps.push((last, StepMesh::Blended));
+            } else if let Some(next) = reconnected(model, sweep, base, value) {
+                bases.push(next);
+                steps.push((bases.len() - 1, StepMesh::Reconnected));
             } else {
                 bases.push(fresh(k)?);
                 steps.push((bases.len() - 1, StepMesh::Fresh));
@@ -307,6 +331,146 @@ impl Plan {
         }
         Ok(Plan { bases, steps })
     }
+}
+
+/// `base` blended to `value` with its deforming band reconnected, when every
+/// new element of the band keeps the quality floor of the fresh mesh the
+/// base descends from; `None` otherwise.
+fn reconnected(model: &Model, sweep: &Sweep, base: &Base, value: f64) -> Option<Base> {
+    let blend = base.blend.as_ref()?;
+    let mm = &base.mm;
+    let mesh = &mm.mesh;
+    let nt = mm.model_triangles;
+    let nodes = blend.nodes_at(&mesh.nodes, value - base.value);
+    // Air of every shape is one region for the reconnection (borders
+    // between air shapes are no borders for the field), labelled again
+    // afterwards from this step's shapes.
+    let labels: Vec<u32> = (0..nt)
+        .map(|t| {
+            let r = mesh.regions[t];
+            if blend.air[t] && blend.band[t] {
+                Mesh::OUTER_REGION
+            } else {
+                r
+            }
+        })
+        .collect();
+    let keep: Vec<bool> = (0..nt).map(|t| !blend.band[t]).collect();
+    // Nodes that may be left out: inside the band's air, off the outer edge.
+    let mut droppable = vec![true; mesh.nodes.len()];
+    droppable[mm.model_nodes..].fill(false);
+    for (t, tri) in mesh.triangles[..nt].iter().enumerate() {
+        if !(blend.band[t] && blend.air[t]) {
+            tri.iter().for_each(|&v| droppable[v as usize] = false);
+        }
+    }
+    for e in &mesh.boundary {
+        e.nodes.iter().for_each(|&v| droppable[v as usize] = false);
+    }
+    // Reconnect; where a new element is poor, leave out a node of it next
+    // to its shortest edge (one node per element, a few rounds).
+    let mut drop = vec![false; mesh.nodes.len()];
+    let mut new = None;
+    for _ in 0..RECONNECT_ROUNDS {
+        let r = reconnect(&nodes, &mesh.triangles[..nt], &labels, &keep, &drop).ok()?;
+        let mut more = false;
+        for (t, tri) in r.triangles.iter().enumerate() {
+            let p = tri.map(|v| nodes[v as usize]);
+            if !r.band[t] || (area2(p) > 0.0 && min_angle(angles(p)) >= blend.floor) {
+                continue;
+            }
+            let len = |k: usize| {
+                let (a, b) = (p[k], p[(k + 1) % 3]);
+                (b[0] - a[0]).hypot(b[1] - a[1])
+            };
+            let mut edges = [0, 1, 2];
+            edges.sort_by(|&i, &j| len(i).total_cmp(&len(j)));
+            let pick = edges
+                .iter()
+                .flat_map(|&k| [tri[k], tri[(k + 1) % 3]])
+                .find(|&v| droppable[v as usize]);
+            match pick {
+                Some(v) if !drop[v as usize] => {
+                    drop[v as usize] = true;
+                    more = true;
+                }
+                Some(_) => {}
+                None => return None,
+            }
+        }
+        if !more {
+            new = Some(r);
+            break;
+        }
+    }
+    let new = new?;
+    // Number the nodes left anew.
+    let mut renumber = vec![u32::MAX; mesh.nodes.len()];
+    let mut nodes_left = Vec::with_capacity(nodes.len());
+    for (v, p) in nodes.iter().enumerate() {
+        if !drop[v] {
+            renumber[v] = nodes_left.len() as u32;
+            nodes_left.push(*p);
+        }
+    }
+    let re = |tri: [u32; 3]| tri.map(|v| renumber[v as usize]);
+    let step_model = model_at(model, value);
+    let mut next = mm.clone();
+    let dropped = drop.iter().filter(|&&d| d).count();
+    next.model_nodes -= dropped;
+    next.model_triangles = new.triangles.len();
+    next.mesh.nodes = nodes_left;
+    next.mesh.triangles = new
+        .triangles
+        .iter()
+        .chain(&mesh.triangles[nt..])
+        .map(|&t| re(t))
+        .collect();
+    next.mesh.regions = new
+        .regions
+        .iter()
+        .chain(&mesh.regions[nt..])
+        .copied()
+        .collect();
+    for e in &mut next.mesh.boundary {
+        e.nodes = e.nodes.map(|v| renumber[v as usize]);
+    }
+    for t in 0..new.triangles.len() {
+        if new.band[t] && new.regions[t] == Mesh::OUTER_REGION {
+            let [a, b, c] = next.mesh.triangles[t].map(|v| next.mesh.nodes[v as usize]);
+            let centroid = [(a[0] + b[0] + c[0]) / 3.0, (a[1] + b[1] + c[1]) / 3.0];
+            next.mesh.regions[t] = step_model
+                .shapes
+                .iter()
+                .enumerate()
+                .rev()
+                .find(|(i, sh)| is_air(&step_model, *i) && sh.outline.contains(centroid))
+                .map_or(Mesh::OUTER_REGION, |(i, _)| i as u32);
+        }
+    }
+    if next.mesh.check().is_err() {
+        return None;
+    }
+    let blend = Blend::new(model, sweep, &next, Some(blend.floor));
+    Some(Base {
+        value,
+        mm: next,
+        blend,
+    })
+}
+
+/// Whether shape `i` is air: no material of its own, no current, no magnet.
+fn is_air(model: &Model, i: usize) -> bool {
+    let s = &model.shapes[i];
+    let m = &model.materials[s.material];
+    matches!(s.excitation, Excitation::None)
+        && m.remanence_t.is_none()
+        && matches!(m.permeability, Permeability::Linear { relative } if relative == 1.0)
+}
+
+/// Doubled signed area of a triangle.
+fn area2([a, b, c]: [Point; 3]) -> f64 {
+    (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
 }
 
 /// The harmonic blend of one base mesh.
@@ -318,6 +482,16 @@ struct Blend {
     base_angles: Vec<f64>,
     /// Triangles with a node of weight other than 0 (the ones that change).
     changed: Vec<usize>,
+    /// For each model triangle: whether it is air (of the outer region or
+    /// of a fixed air shape).
+    air: Vec<bool>,
+    /// For each model triangle: whether it may be reconnected (air or a
+    /// deforming fixed shape, with a node of weight other than 0).
+    band: Vec<bool>,
+    /// Smallest angle a reconnected element may have, degrees: a fraction
+    /// [`BLEND_ANGLE_FRACTION`] of the fresh mesh's smallest angle in its
+    /// deforming part.
+    floor: f64,
 }
 
 #[derive(Clone, Copy)]
@@ -329,7 +503,15 @@ enum Motion {
 impl Blend {
     /// `None` when some node belongs both to a moving shape and to a part
     /// that must stay (a fixed shape, or an outer edge it cannot slide on).
-    fn new(model: &Model, sweep: &Sweep, mm: &ModelMesh) -> Option<Blend> {
+    ///
+    /// A fixed shape that a moving one is drawn over (they share nodes, as a
+    /// magnet seated in rotor iron) has its region cut by the moving shape,
+    /// so its mesh must deform with it: its interior blends like air, and
+    /// the nodes on its own edges slide along them where the motion keeps
+    /// those edges in place (circles about a turn's centre, lines along a
+    /// move) and stay put elsewhere. `floor` is the quality floor of the
+    /// fresh mesh this one descends from (`None`: this is a fresh mesh).
+    fn new(model: &Model, sweep: &Sweep, mm: &ModelMesh, floor: Option<f64>) -> Option<Blend> {
         let (moving, motion): (&[usize], Motion) = match sweep {
             Sweep::Current { .. } => return None,
             Sweep::Move { shapes, along, .. } => (shapes, Motion::Move { along: *along }),
@@ -337,19 +519,36 @@ impl Blend {
         };
         let mesh = &mm.mesh;
         let n = mm.model_nodes;
-        // 0: free air node, 1: moves, 2: stays.
+        let nt = mm.model_triangles;
+        let triangles = &mesh.triangles[..nt];
+        let is_moving = |region: u32| moving.contains(&(region as usize));
+        let air: Vec<bool> = mesh.regions[..nt]
+            .iter()
+            .map(|&r| {
+                r == Mesh::OUTER_REGION
+                    || (!is_moving(r)
+                        && model.shapes.get(r as usize).is_some()
+                        && is_air(model, r as usize))
+            })
+            .collect();
+        // Fixed solid shapes sharing a node with a moving shape deform.
+        let mut on_moving = vec![false; mesh.nodes.len()];
+        for (t, tri) in triangles.iter().enumerate() {
+            if is_moving(mesh.regions[t]) {
+                tri.iter().for_each(|&v| on_moving[v as usize] = true);
+            }
+        }
+        let mut deforming_shape = vec![false; model.shapes.len()];
+        for (t, tri) in triangles.iter().enumerate() {
+            let r = mesh.regions[t];
+            if !air[t] && !is_moving(r) && tri.iter().any(|&v| on_moving[v as usize]) {
+                deforming_shape[r as usize] = true;
+            }
+        }
+        let deforming = |t: usize| air[t] || deforming_shape[mesh.regions[t] as usize];
+        // 0: free node, 1: moves, 2: stays.
         let mut role = vec![0u8; mesh.nodes.len()];
         role[n..].fill(2);
-        let air = |region: u32| -> bool {
-            region == Mesh::OUTER_REGION
-                || model.shapes.get(region as usize).is_some_and(|s| {
-                    let m = &model.materials[s.material];
-                    matches!(s.excitation, Excitation::None)
-                        && m.remanence_t.is_none()
-                        && matches!(m.permeability, Permeability::Linear { relative } if relative == 1.0)
-                        && !moving.contains(&(region as usize))
-                })
-        };
         let mut conflict = false;
         let mut mark = |role: &mut [u8], node: u32, r: u8| {
             let slot = &mut role[node as usize];
@@ -358,12 +557,65 @@ impl Blend {
             }
             *slot = r;
         };
-        for (t, tri) in mesh.triangles[..mm.model_triangles].iter().enumerate() {
-            let region = mesh.regions[t];
-            if moving.contains(&(region as usize)) {
+        for (t, tri) in triangles.iter().enumerate() {
+            if is_moving(mesh.regions[t]) {
                 tri.iter().for_each(|&v| mark(&mut role, v, 1));
-            } else if !air(region) {
+            } else if !deforming(t) {
                 tri.iter().for_each(|&v| mark(&mut role, v, 2));
+            }
+        }
+        // Edges of deforming shapes against other fixed regions: their
+        // nodes stay unless every such edge there keeps its place under the
+        // motion.
+        let keeps_place = |a: Point, b: Point| -> bool {
+            match motion {
+                Motion::Move { along } => {
+                    let d = [b[0] - a[0], b[1] - a[1]];
+                    (d[0] * along[1] - d[1] * along[0]).abs() <= 1e-9 * d[0].hypot(d[1])
+                }
+                Motion::Turn { center } => {
+                    let ra = (a[0] - center[0]).hypot(a[1] - center[1]);
+                    let rb = (b[0] - center[0]).hypot(b[1] - center[1]);
+                    // On one circle up to the chords' sag (an arc is cut
+                    // into chords, refinement splits them at their middles,
+                    // and crossings with other edges land on the chords):
+                    // nearly tangent and within 0.1 % of the radius.
+                    let l = (b[0] - a[0]).hypot(b[1] - a[1]);
+                    let dr = (ra - rb).abs();
+                    dr <= 0.25 * l && dr <= 1e-3 * ra.max(rb)
+                }
+            }
+        };
+        if deforming_shape.contains(&true) {
+            let mut side: HashMap<(u32, u32), u32> = HashMap::with_capacity(3 * nt);
+            for (t, tri) in triangles.iter().enumerate() {
+                for k in 0..3 {
+                    side.insert((tri[k], tri[(k + 1) % 3]), mesh.regions[t]);
+                }
+            }
+            let mut slides = vec![true; mesh.nodes.len()];
+            for (t, tri) in triangles.iter().enumerate() {
+                let r = mesh.regions[t];
+                if air[t] || !deforming_shape[r as usize] {
+                    continue;
+                }
+                for k in 0..3 {
+                    let (a, b) = (tri[k], tri[(k + 1) % 3]);
+                    match side.get(&(b, a)) {
+                        Some(&o) if o == r || is_moving(o) => continue,
+                        None => continue, // the outer edge, below
+                        _ => {}
+                    }
+                    if !keeps_place(mesh.nodes[a as usize], mesh.nodes[b as usize]) {
+                        slides[a as usize] = false;
+                        slides[b as usize] = false;
+                    }
+                }
+            }
+            for (v, &s) in slides.iter().enumerate() {
+                if !s {
+                    mark(&mut role, v as u32, 2);
+                }
             }
         }
         let outer = &model.outer.outline;
@@ -376,7 +628,8 @@ impl Blend {
         });
         // A node on the outer edge stays, unless a move slides it along a
         // straight stretch parallel to the motion (a plunger on the axis).
-        let mut edge_segment: Vec<Option<u32>> = vec![None; mesh.nodes.len()];
+        // (Two such stretches meeting at a node are one line.)
+        let mut on_edge = vec![false; mesh.nodes.len()];
         let mut slides = vec![true; mesh.nodes.len()];
         for e in &mesh.boundary {
             let parallel = match (motion, segments.get(e.segment as usize)) {
@@ -388,32 +641,46 @@ impl Blend {
                 _ => false,
             };
             for &v in &e.nodes {
-                let v = v as usize;
-                let same = edge_segment[v].is_none_or(|s| s == e.segment);
-                slides[v] &= parallel && same && !periodic;
-                edge_segment[v] = Some(e.segment);
+                slides[v as usize] &= parallel && !periodic;
+                on_edge[v as usize] = true;
             }
         }
         for v in 0..n {
-            if edge_segment[v].is_some() && !slides[v] {
+            if on_edge[v] && !slides[v] {
                 mark(&mut role, v as u32, 2);
             }
         }
         if conflict || !role.contains(&1) {
             return None;
         }
-        let weight = harmonic_weight(mesh, &mm.mesh.triangles[..mm.model_triangles], &role);
-        let changed = (0..mm.model_triangles)
-            .filter(|&t| mesh.triangles[t].iter().any(|&v| weight[v as usize] != 0.0))
+        // Nodes near a fixed part stay and nodes near a moving part move
+        // with it; the motion ramps up between (the shear is taken by the
+        // middle of a gap, away from fine features at the parts' edges).
+        let weight: Vec<f64> = harmonic_weight(mesh, triangles, &role)
+            .into_iter()
+            .map(|w| ((w - WEIGHT_RAMP) / (1.0 - 2.0 * WEIGHT_RAMP)).clamp(0.0, 1.0))
             .collect();
-        let base_angles = (0..mm.model_triangles)
-            .map(|t| min_angle(mesh.triangle_angles(t)))
+        let moves = |t: usize| triangles[t].iter().any(|&v| weight[v as usize] != 0.0);
+        let changed: Vec<usize> = (0..nt).filter(|&t| moves(t)).collect();
+        let band: Vec<bool> = (0..nt).map(|t| deforming(t) && moves(t)).collect();
+        let base_angles: Vec<f64> = (0..nt)
+            .map(|t| min_angle(angles(triangles[t].map(|v| mesh.nodes[v as usize]))))
             .collect();
+        let floor = floor.unwrap_or_else(|| {
+            let smallest = (0..nt)
+                .filter(|&t| deforming(t))
+                .map(|t| base_angles[t])
+                .fold(model.mesh.min_angle_deg, f64::min);
+            BLEND_ANGLE_FRACTION * smallest
+        });
         Some(Blend {
             motion,
             weight,
             base_angles,
             changed,
+            air,
+            band,
+            floor,
         })
     }
 
@@ -452,10 +719,8 @@ impl Blend {
             report: Default::default(),
         };
         self.changed.iter().all(|&t| {
-            let [a, b, c] = base.triangles[t].map(|v| moved.nodes[v as usize]);
-            let area2 = (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0]);
-            area2 > 0.0
-                && min_angle(angles([a, b, c])) >= BLEND_ANGLE_FRACTION * self.base_angles[t]
+            let p = base.triangles[t].map(|v| moved.nodes[v as usize]);
+            area2(p) > 0.0 && min_angle(angles(p)) >= BLEND_ANGLE_FRACTION * self.base_angles[t]
         })
     }
 }
