@@ -2,10 +2,10 @@
 //! factorisation, triangular solve and the full nonlinear solve, P1 and P2,
 //! at about 10k and 100k unknowns (1M with `FLUXWRIGHT_BENCH_1M=1`, slow).
 //!
-//! Ids: `assemble/p1/n=…`, `analyze/p1/n=…`, `factor/p2/n=…` (default
-//! ordering), `analyze-nd/…`, `factor-nd/…` (coordinate nested dissection),
+//! Ids: `assemble/p1/n=…`, `analyze/p1/n=…`, `factor/p2/n=…` (AMD: plain
+//! `analyze` has no points), `analyze-nd/…`, `factor-nd/…` (coordinate nested dissection),
 //! `substitute/p1/n=…` (forward and back substitution with the factor),
-//! `solve/p1/n=…` (Newton) where n is the number of reduced unknowns. The problem: a square of side 0.2 m (zero
+//! `solve/p1/n=…` (Newton, default ordering: the dissection) where n is the number of reduced unknowns. The problem: a square of side 0.2 m (zero
 //! potential around it) holding an iron frame with a gapped centre leg,
 //! driven into saturation by a coil around the leg; a structured mesh so
 //! the sizes are exact.

@@ -27,9 +27,9 @@ impl SolveBar {
         SolveBar { bar }
     }
 
-    /// Print a line above the bar.
+    /// Print a line on stdout above the bar (also when the bar is hidden).
     pub fn println(&self, line: &str) {
-        self.bar.println(line);
+        self.bar.suspend(|| println!("{line}"));
     }
 
     /// Results, files and pictures are being made.

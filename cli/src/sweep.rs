@@ -170,13 +170,19 @@ pub fn merge(dirs: &[PathBuf], out: &Path) -> Result<u8> {
     let Some((first_dir, first, first_table)) = parts.first() else {
         return Err(Failure::input("merge: give at least one sweep folder").into());
     };
+    // A shard with no steps (more shards than blocks) has only the fixed
+    // columns; the others must agree column for column.
+    let header = parts
+        .iter()
+        .find(|p| !p.2.rows.is_empty())
+        .map_or(&first_table.header, |p| &p.2.header);
     let mut rows: Vec<(usize, Vec<String>)> = Vec::new();
     let mut converged = true;
     for (d, index, table) in &parts {
         if index.title != first.title
             || index.parameter != first.parameter
             || index.total_steps != first.total_steps
-            || table.header != first_table.header
+            || (!table.rows.is_empty() && table.header != *header)
         {
             return Err(Failure::input(format!(
                 "{} and {} hold different sweeps (title, parameter, step count or columns differ)",
@@ -217,7 +223,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path) -> Result<u8> {
         .into());
     }
     let table = Table {
-        header: first_table.header.clone(),
+        header: header.clone(),
         rows: rows.into_iter().map(|r| r.1).collect(),
     };
     let mut staging = Staging::new(out)?;

@@ -360,3 +360,66 @@ fn mesh_without_out_writes_to_out_and_the_model_name() {
     assert!(status.success());
     assert!(dir.join("out/busbars/mesh.json").is_file());
 }
+
+/// Writes one shard folder as `sweep` would: its index, its table and a
+/// results file per step.
+fn fake_shard(dir: &Path, shard: usize, steps: &[usize], rows: &str) {
+    std::fs::create_dir_all(dir.join("steps")).unwrap();
+    let index = format!(
+        r#"{{"format": "fluxwright-sweep/1", "title": "t", "parameter": "current in main (A)",
+            "total_steps": 3, "shard": [{shard}, 2], "steps": {steps:?}, "converged": true}}"#
+    );
+    write(dir, "sweep.json", &index);
+    for k in steps {
+        write(&dir.join("steps"), &format!("{k:03}.json"), "{}");
+    }
+    write(dir, "sweep.csv", rows);
+}
+
+/// More shards than blocks leaves one shard empty, with only the fixed
+/// columns: merge still joins the others into the whole table.
+#[test]
+fn merge_accepts_an_empty_shard() {
+    let dir = scratch("merge-empty");
+    let fixed = "step,main.current_a,converged,iterations,error_estimate,energy_j,coenergy_j";
+    let full = format!("{fixed},main.flux_linkage_wb\n");
+    let rows = format!(
+        "{full}0,1,true,9,0.01,0.5,0.5,0.1\n1,2,true,4,0.01,2,2,0.2\n2,3,true,4,0.01,4.5,4.5,0.3\n"
+    );
+    fake_shard(&dir.join("a"), 1, &[0, 1, 2], &rows);
+    fake_shard(&dir.join("b"), 2, &[], &format!("{fixed}\n"));
+    let out = dir.join("merged");
+    let o = fluxwright(&[
+        "merge",
+        dir.join("b").to_str().unwrap(),
+        dir.join("a").to_str().unwrap(),
+        "-o",
+        out.to_str().unwrap(),
+    ]);
+    assert_eq!(
+        o.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    assert_eq!(
+        std::fs::read_to_string(out.join("sweep.csv")).unwrap(),
+        rows
+    );
+    // A shard whose columns differ from the others' is still refused.
+    fake_shard(
+        &dir.join("d"),
+        2,
+        &[2],
+        &format!("{fixed},other\n2,3,true,4,0.01,4.5,4.5,7\n"),
+    );
+    let o = fluxwright(&[
+        "merge",
+        dir.join("a").to_str().unwrap(),
+        dir.join("d").to_str().unwrap(),
+        "-o",
+        dir.join("bad").to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("hold different sweeps"));
+}

@@ -5,14 +5,19 @@
 //! once per pattern and reused by every numeric factorisation (every Newton
 //! step, every sweep step on the same mesh).
 //!
-//! Defaults, as measured on P1 meshes of 100k and 1M unknowns (see
-//! benches/README.md): faer's approximate minimum degree ordering, its
-//! supernodal factorisation (simplicial was 10× slower at 1M), and a
-//! sequential numeric phase (`Par::Seq`: `Par::rayon(2)` gained nothing on
-//! the shared 2-core machines). A nested-dissection ordering from METIS
-//! halved the factorisation flops but took four times as long to compute as
-//! AMD, so it paid off only over many Newton steps at 1M unknowns; such an
-//! ordering can be passed in as [`FillOrdering::Custom`].
+//! Defaults, as measured on the gapped-core benchmarks of 10k to 2M
+//! unknowns (see benches/README.md): the coordinate nested dissection of
+//! [`crate::ordering`] when the caller gives the unknowns' positions
+//! ([`SpdSolver::analyze_with_points`], as the Newton solver does), faer's
+//! approximate minimum degree ordering otherwise; faer's supernodal
+//! factorisation (simplicial was 10× slower at 1M), and a sequential
+//! numeric phase (`Par::Seq`: `Par::rayon(2)` gained nothing on the shared
+//! 2-core machines). On P1 the dissection needs 0.52–0.77 of AMD's flops
+//! from 30k unknowns up and is faster to compute (1M: analyse + factor
+//! 2.5–3.1 s against 3.9–4.2 s; 2M: a 10-step Newton solve 44 s against
+//! 83 s); on P2 both are within ±7 % end to end. A METIS order (halving
+//! the flops, but slow to compute) can be passed in as
+//! [`FillOrdering::Custom`].
 
 use crate::assembly::SparsityPattern;
 use faer::dyn_stack::{MemBuffer, MemStack};
@@ -64,9 +69,8 @@ pub enum LinearError {
 pub enum FillOrdering {
     /// faer's approximate minimum degree ordering (Amestoy, Davis & Duff,
     /// SIAM J. Matrix Anal. Appl. 17 (1996) 886–905), computed from the
-    /// pattern. The default: cheapest to compute and fastest overall for a
-    /// single factorisation.
-    #[default]
+    /// pattern alone. Fewer flops than [`FillOrdering::CoordinateDissection`]
+    /// on P2 meshes (0.8–0.9 of them), but more on large P1 ones.
     Amd,
     /// A caller's elimination order, e.g. a nested dissection from a graph
     /// partitioner: `order[k]` is the unknown eliminated k-th. It is
@@ -77,7 +81,8 @@ pub enum FillOrdering {
     /// Coordinate nested dissection ([`crate::ordering`]) from one point per
     /// unknown, given to [`SpdSolver::analyze_with_points`]; postordered like
     /// [`FillOrdering::Custom`]. Plain [`SpdSolver::analyze`] has no points
-    /// and falls back to [`FillOrdering::Amd`].
+    /// and falls back to [`FillOrdering::Amd`]. The default.
+    #[default]
     CoordinateDissection,
 }
 
@@ -104,8 +109,8 @@ pub trait SpdSolver: Send {
     fn solve(&mut self, rhs: &mut [f64]) -> Result<(), LinearError>;
 }
 
-/// faer's sparse Cholesky (LLᵀ), supernodal, with a [`FillOrdering`] (AMD
-/// by default).
+/// faer's sparse Cholesky (LLᵀ), supernodal, with a [`FillOrdering`] (coordinate
+/// nested dissection by default).
 pub struct FaerCholesky {
     par: Par,
     ordering: FillOrdering,
@@ -113,6 +118,11 @@ pub struct FaerCholesky {
     symbolic: Option<SymbolicCholesky<usize>>,
     factor_values: Vec<f64>,
     factored: bool,
+    /// The matrix values of the factorisation held (when `factored`): the
+    /// same values again are not factored twice (a sweep's warm start
+    /// assembles the tangent its predecessor's incremental inductance
+    /// factored).
+    factored_from: Vec<f64>,
     scratch: Option<MemBuffer>,
 }
 
@@ -133,9 +143,11 @@ impl Default for FaerCholesky {
 }
 
 impl FaerCholesky {
-    /// A solver running its numeric phase with parallelism `par`.
+    /// A solver running its numeric phase with parallelism `par`, with the
+    /// default [`FillOrdering`] (coordinate nested dissection when given
+    /// points, AMD otherwise).
     pub fn new(par: Par) -> FaerCholesky {
-        FaerCholesky::with_ordering(par, FillOrdering::Amd)
+        FaerCholesky::with_ordering(par, FillOrdering::default())
     }
 
     /// A solver with parallelism `par` and fill-reducing `ordering`.
@@ -147,6 +159,7 @@ impl FaerCholesky {
             symbolic: None,
             factor_values: Vec::new(),
             factored: false,
+            factored_from: Vec::new(),
             scratch: None,
         }
     }
@@ -198,8 +211,8 @@ impl FaerCholesky {
         points: Option<&[[f64; 2]]>,
     ) -> Result<(), LinearError> {
         if self.symbolic.is_some() && self.pattern.as_ref() == Some(pattern) {
-            // Same pattern (the next step of a sweep, say): keep the analysis.
-            self.factored = false;
+            // Same pattern (the next step of a sweep, say): keep the analysis,
+            // and the factorisation, which is still one of this pattern.
             return Ok(());
         }
         let sym = SymbolicSparseColMatRef::new_checked(
@@ -276,6 +289,14 @@ impl SpdSolver for FaerCholesky {
                 got: values.len(),
             });
         }
+        let same = |a: &[f64], b: &[f64]| a.iter().zip(b).all(|(x, y)| x.to_bits() == y.to_bits());
+        if self.factored
+            && self.factored_from.len() == values.len()
+            && same(&self.factored_from, values)
+        {
+            // Bit for bit the matrix already factored: the same factor.
+            return Ok(());
+        }
         self.factored = false;
         let sym = SymbolicSparseColMatRef::new_checked(
             pattern.n,
@@ -300,6 +321,8 @@ impl SpdSolver for FaerCholesky {
                     LinearError::NotPositiveDefinite { pivot: index }
                 }
             })?;
+        self.factored_from.clear();
+        self.factored_from.extend_from_slice(values);
         self.factored = true;
         Ok(())
     }

@@ -201,16 +201,27 @@ fn run<'p>(
     timings.analyze_s = clock.elapsed().as_secs_f64();
 
     let clock = Instant::now();
-    assembler.assemble(&u, Some(&mut values), &mut residual);
+    let guess = guess_start.filter(|g| g.len() == u.len() && n > 0);
+    // With a start to try, the cold residual only sets the reference: its
+    // tangent is not needed unless the start is not used.
+    assembler.assemble(
+        &u,
+        guess.is_none().then_some(values.as_mut_slice()),
+        &mut residual,
+    );
     let reference = norm(&residual);
-    let warm = match guess_start {
-        Some(guess) if guess.len() == u.len() && n > 0 && reference > 0.0 => {
+    let warm = match guess {
+        Some(guess) if reference > 0.0 => {
             reduce(&assembler.constraints.target, guess, &mut x);
             assembler.constraints.expand(&x, &mut u);
             assembler.assemble(&u, Some(&mut values), &mut residual);
             true
         }
-        _ => false,
+        Some(_) => {
+            assembler.assemble(&u, Some(&mut values), &mut residual);
+            false
+        }
+        None => false,
     };
     timings.assembly_s += clock.elapsed().as_secs_f64();
     report.residual_history.push(if warm {
@@ -236,6 +247,15 @@ fn run<'p>(
     let mut trial_x = vec![0.0; n];
     let mut trial_u = u.clone();
     let mut trial_r = vec![0.0; n];
+    // The full step's residual and tangent: the line search tries α = 1
+    // first and mostly keeps it, and then they are the next iterate's
+    // (the residual does not depend on whether the tangent is assembled).
+    let mut full_values = if linear {
+        Vec::new()
+    } else {
+        vec![0.0; values.len()]
+    };
+    let mut full_r = vec![0.0; n];
     let mut step = vec![0.0; n];
     while report.iterations < options.max_iterations {
         let clock = Instant::now();
@@ -250,12 +270,20 @@ fn run<'p>(
         report.iterations += 1;
 
         let clock = Instant::now();
+        // Whether full_values and full_r hold the tangent and residual at α = 1.
+        let mut full_done = false;
         let mut trial = |alpha: f64, trial_r: &mut Vec<f64>| -> f64 {
             for ((t, xi), s) in trial_x.iter_mut().zip(&x).zip(&step) {
                 *t = xi + alpha * s;
             }
             assembler.constraints.expand(&trial_x, &mut trial_u);
-            assembler.assemble(&trial_u, None, trial_r);
+            if alpha == 1.0 && !linear && !full_done {
+                assembler.assemble(&trial_u, Some(&mut full_values), &mut full_r);
+                full_done = true;
+                trial_r.copy_from_slice(&full_r);
+            } else {
+                assembler.assemble(&trial_u, None, trial_r);
+            }
             norm(trial_r)
         };
         let best = if linear {
@@ -287,6 +315,10 @@ fn run<'p>(
         report.relative_update = alpha * norm(&step) / norm(&x).max(f64::MIN_POSITIVE);
         if linear {
             assembler.assemble(&u, None, &mut residual);
+        } else if alpha == 1.0 && full_done {
+            // x + 1·δ is the trial point α = 1: same bits as assembling at u.
+            std::mem::swap(&mut values, &mut full_values);
+            std::mem::swap(&mut residual, &mut full_r);
         } else {
             assembler.assemble(&u, Some(&mut values), &mut residual);
         }

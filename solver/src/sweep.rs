@@ -1,7 +1,7 @@
 //! Sweeps: one parameter of a model over a range, each step a full
 //! nonlinear solve with every result of a single solve.
 //!
-//! Steps are grouped in blocks of [`BLOCK_STEPS`] neighbours. Within a block
+//! Steps are grouped in blocks of [`block_steps`] neighbours. Within a block
 //! each step starts Newton from the previous step's potential and keeps its
 //! symbolic analysis; blocks are independent and run in parallel (rayon).
 //! A step's numbers therefore depend on its block only, not on the number
@@ -33,9 +33,17 @@ use std::borrow::Cow;
 use std::collections::HashMap;
 use std::time::Instant;
 
-/// Neighbouring steps solved one after another in one block (warm starts).
-/// Fixed, so that shards and thread counts never change the numbers.
-pub const BLOCK_STEPS: usize = 4;
+/// How many neighbouring steps one block solves one after another (warm
+/// starts), for a sweep of `total_steps`: half the sweep, between 4 and 11.
+/// Each block starts Newton cold (about 10 steps on a saturating core
+/// against 4-5 warm), so long blocks are cheaper; two blocks keep two cores
+/// busy, and blocks of at most 11 leave enough of them for shards. It
+/// depends on the step count alone, so shards and thread counts never
+/// change the numbers. Measured on a 21-step current sweep of a 59k-unknown
+/// choke (benches/sweep.rs): blocks of 4 cost 6.6 single solves, of 11 5.2.
+pub fn block_steps(total_steps: usize) -> usize {
+    total_steps.div_ceil(2).clamp(4, 11)
+}
 
 /// A blended element may lose at most this fraction of its smallest angle
 /// before the step is meshed afresh (common practice for mesh morphing, no
@@ -141,8 +149,9 @@ pub enum SweepError {
 /// The step numbers a shard solves (all steps without one), ascending.
 pub fn shard_steps(total_steps: usize, shard: Option<Shard>) -> Vec<usize> {
     let (index, count) = shard.map_or((0, 1), |s| (s.index, s.count.max(1)));
+    let block = block_steps(total_steps);
     (0..total_steps)
-        .filter(|k| (k / BLOCK_STEPS) % count == index)
+        .filter(|k| (k / block) % count == index)
         .collect()
 }
 
@@ -192,9 +201,8 @@ pub fn run(
     let values = sweep.values();
     let plan = Plan::new(model, sweep, &values)?;
     let steps = shard_steps(values.len(), options.shard);
-    let blocks: Vec<&[usize]> = steps
-        .chunk_by(|a, b| a / BLOCK_STEPS == b / BLOCK_STEPS)
-        .collect();
+    let block = block_steps(values.len());
+    let blocks: Vec<&[usize]> = steps.chunk_by(|a, b| a / block == b / block).collect();
     let solved: Vec<Vec<SweepStep>> = blocks
         .par_iter()
         .map(|block| solve_block(model, &plan, &values, block, &options.newton, on_step))

@@ -140,7 +140,7 @@ fn incremental_inductance_is_the_slope_of_the_linkage() {
 
 #[test]
 fn shards_give_the_unsharded_numbers_to_the_last_digit() {
-    // 9 steps: blocks of 4, 4 and 1; three shards take one block each.
+    // 9 steps: blocks of 5 and 4; of three shards the last has none.
     let m = gapped_core(r#"current = { winding = "main", from = 10, to = 50, steps = 8 }"#);
     let whole = run(&m, None);
     let mut merged: Vec<SweepStep> = (0..3)
@@ -161,7 +161,13 @@ fn shards_give_the_unsharded_numbers_to_the_last_digit() {
     }
     assert_eq!(
         sweep::shard_steps(9, Some(Shard { index: 1, count: 3 })),
-        vec![4, 5, 6, 7]
+        vec![5, 6, 7, 8]
+    );
+    assert!(sweep::shard_steps(9, Some(Shard { index: 2, count: 3 })).is_empty());
+    assert_eq!(
+        [2, 9, 21, 40].map(sweep::block_steps),
+        [4, 5, 11, 11],
+        "half the sweep, between 4 and 11"
     );
 }
 

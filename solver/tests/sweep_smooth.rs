@@ -156,12 +156,13 @@ fn a_sliding_plunger_reconnects_instead_of_remeshing_and_its_force_is_smooth() {
             -dw
         );
     }
-    // Shards plan the same meshes: the second of two shards (steps 4 to 7)
-    // gives the unsharded numbers to the last digit.
+    // Shards plan the same meshes: the second of two shards (steps 5 to 8,
+    // the second block of 9 steps) gives the unsharded numbers to the last
+    // digit.
     let part = run(&m, Some(Shard { index: 1, count: 2 }));
     assert_eq!(
         part.iter().map(|s| s.index).collect::<Vec<_>>(),
-        vec![4, 5, 6, 7]
+        vec![5, 6, 7, 8]
     );
     for s in &part {
         let whole = &steps[s.index];
