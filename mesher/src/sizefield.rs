@@ -92,6 +92,25 @@ fn tri_err(e: spade::InsertionError) -> MeshError {
     MeshError::Triangulation(format!("{e:?}"))
 }
 
+/// Insert a background vertex at `p` with no size yet, walking from the
+/// last insertion (`hint`) when there is one: points come in spatial order.
+fn insert_unsized(
+    bg: &mut Bg,
+    p: Point,
+    hint: Option<FixedVertexHandle>,
+) -> Result<FixedVertexHandle, MeshError> {
+    let v = BgVertex {
+        pos: p2(p),
+        h: f64::INFINITY,
+        src: [0.0; 3],
+    };
+    match hint {
+        Some(hint) => bg.insert_with_hint(v, hint),
+        None => bg.insert(v),
+    }
+    .map_err(tri_err)
+}
+
 impl SizeField {
     /// Build the background and the PSLG from the domain.
     pub(crate) fn build(
@@ -127,16 +146,7 @@ impl SizeField {
         let mut last: Option<FixedVertexHandle> = None;
         let mut handles = Vec::with_capacity(arr.points.len());
         for p in &arr.points {
-            let v = BgVertex {
-                pos: p2(*p),
-                h: f64::INFINITY,
-                src: [0.0; 3],
-            };
-            let h = match last {
-                Some(hint) => bg.insert_with_hint(v, hint),
-                None => bg.insert(v),
-            }
-            .map_err(tri_err)?;
+            let h = insert_unsized(&mut bg, *p, last)?;
             if h.index() != handles.len() {
                 return Err(MeshError::Triangulation(format!(
                     "input points ({}, {}) coincide after rounding",
@@ -179,16 +189,7 @@ impl SizeField {
                         lo[0] + (ii as f64 + 0.5 + 0.0137) * spacing,
                         lo[1] + (j as f64 + 0.5 + 0.0291) * spacing,
                     ];
-                    let v = BgVertex {
-                        pos: p2(p),
-                        h: f64::INFINITY,
-                        src: [0.0; 3],
-                    };
-                    let h = match last {
-                        Some(hint) => bg.insert_with_hint(v, hint),
-                        None => bg.insert(v),
-                    }
-                    .map_err(tri_err)?;
+                    let h = insert_unsized(&mut bg, p, last)?;
                     last = Some(h);
                 }
             }
@@ -470,16 +471,7 @@ fn insert_size_hints(
             _ => false,
         };
         if free {
-            let v = BgVertex {
-                pos: p2(p),
-                h: f64::INFINITY,
-                src: [0.0; 3],
-            };
-            let h = match last {
-                Some(hint) => bg.insert_with_hint(v, hint),
-                None => bg.insert(v),
-            }
-            .map_err(tri_err)?;
+            let h = insert_unsized(bg, p, last)?;
             hinted.push((h.index(), size));
             last = Some(h);
         }
