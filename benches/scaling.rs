@@ -31,6 +31,10 @@
 
 use fluxwright_solver::assembly::Assembler;
 use fluxwright_solver::linear::{FaerCholesky, FillOrdering, Par, SpdSolver};
+#[path = "common/choke.rs"]
+mod choke;
+
+use choke::choke_toml;
 use fluxwright_solver::model::{Model, ModelSource};
 use fluxwright_solver::nonlinear::{self, NewtonOptions};
 use fluxwright_solver::study;
@@ -48,72 +52,8 @@ const TARGETS_P2: [usize; 4] = [50_000, 100_000, 300_000, 1_000_000];
 
 /// The model at mesh-size scale `scale`, element order `order`.
 fn model(scale: f64, order: u8) -> Model {
-    let s = |v: f64| v * scale;
-    let text = format!(
-        r#"
-[model]
-title = "Gapped E-core choke, scaling benchmark (invented)"
-symmetry = "planar"
-length_unit = "mm"
-depth = 30
-element_order = {order}
-
-[mesh]
-max_size = {max}
-growth = 1.3
-
-[materials.lamination]
-from_library = "silicon-steel"
-stacking_factor = 0.96
-
-[materials.copper]
-from_library = "copper"
-
-[windings.main]
-turns = 40
-current = 20
-
-[[shape]]
-name = "core"
-rectangle = {{ min = [0, 0], max = [60, 50] }}
-material = "lamination"
-mesh_size = {core}
-
-[[shape]]
-name = "window_left"
-rectangle = {{ min = [10, 10], max = [20, 40] }}
-
-[[shape]]
-name = "window_right"
-rectangle = {{ min = [40, 10], max = [50, 40] }}
-
-[[shape]]
-name = "gap"
-rectangle = {{ min = [20, 24.5], max = [40, 25.5] }}
-mesh_size = {gap}
-
-[[shape]]
-name = "coil_go"
-rectangle = {{ min = [11, 11], max = [19, 39] }}
-material = "copper"
-winding = "main"
-direction = 1
-
-[[shape]]
-name = "coil_return"
-rectangle = {{ min = [41, 11], max = [49, 39] }}
-material = "copper"
-winding = "main"
-direction = -1
-
-[outer]
-shape = {{ rectangle = {{ min = [-30, -30], max = [90, 80] }} }}
-condition = "zero-potential"
-"#,
-        max = s(8.0),
-        core = s(2.5),
-        gap = s(0.5),
-    );
+    let title = "Gapped E-core choke, scaling benchmark (invented)";
+    let text = choke_toml(title, scale, order, 20.0, "");
     Model::from_toml_str(&text, &ModelSource::new("scaling-bench.toml")).expect("valid model")
 }
 

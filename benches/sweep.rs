@@ -28,6 +28,10 @@
 //! value from a cold start and from three warm starts, and what blocks of
 //! 4 to 11 steps would cost with each ([`predictor_study`]).
 
+#[path = "common/choke.rs"]
+mod choke;
+
+use choke::choke_toml;
 use fluxwright_solver::model::{Model, ModelSource};
 use fluxwright_solver::nonlinear::{self, NewtonOptions};
 use fluxwright_solver::study;
@@ -37,68 +41,9 @@ use std::time::Instant;
 const TOP_CURRENT_A: f64 = 42.0;
 
 fn model(scale: f64) -> Model {
-    let s = |v: f64| v * scale;
-    let text = format!(
+    // Probes, the Ampère loop and the sweep of the current.
+    let extra = format!(
         r#"
-[model]
-title = "Gapped E-core choke, sweep benchmark (invented)"
-symmetry = "planar"
-length_unit = "mm"
-depth = 30
-element_order = 2
-
-[mesh]
-max_size = {max}
-growth = 1.3
-
-[materials.lamination]
-from_library = "silicon-steel"
-stacking_factor = 0.96
-
-[materials.copper]
-from_library = "copper"
-
-[windings.main]
-turns = 40
-current = {TOP_CURRENT_A}
-
-[[shape]]
-name = "core"
-rectangle = {{ min = [0, 0], max = [60, 50] }}
-material = "lamination"
-mesh_size = {core}
-
-[[shape]]
-name = "window_left"
-rectangle = {{ min = [10, 10], max = [20, 40] }}
-
-[[shape]]
-name = "window_right"
-rectangle = {{ min = [40, 10], max = [50, 40] }}
-
-[[shape]]
-name = "gap"
-rectangle = {{ min = [20, 24.5], max = [40, 25.5] }}
-mesh_size = {gap}
-
-[[shape]]
-name = "coil_go"
-rectangle = {{ min = [11, 11], max = [19, 39] }}
-material = "copper"
-winding = "main"
-direction = 1
-
-[[shape]]
-name = "coil_return"
-rectangle = {{ min = [41, 11], max = [49, 39] }}
-material = "copper"
-winding = "main"
-direction = -1
-
-[outer]
-shape = {{ rectangle = {{ min = [-30, -30], max = [90, 80] }} }}
-condition = "zero-potential"
-
 [[probe]]
 name = "gap_centre"
 at = [30, 25]
@@ -109,10 +54,14 @@ rectangle = {{ min = [10.5, 10.5], max = [19.5, 39.5] }}
 
 [sweep]
 current = {{ winding = "main", from = 2, to = {TOP_CURRENT_A}, steps = 20 }}
-"#,
-        max = s(8.0),
-        core = s(2.5),
-        gap = s(0.5),
+"#
+    );
+    let text = choke_toml(
+        "Gapped E-core choke, sweep benchmark (invented)",
+        scale,
+        2,
+        TOP_CURRENT_A,
+        &extra,
     );
     Model::from_toml_str(&text, &ModelSource::new("sweep-bench.toml")).expect("valid model")
 }
