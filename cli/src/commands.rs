@@ -459,12 +459,13 @@ fn write_solved(
     let (mm, setup, solution) = (adapted.mesh, adapted.setup, adapted.solution);
     let mesh_seconds = adapted.mesh_seconds;
     let model_mesh = model_part(mm);
-    let mut results = study::results(
+    let mut results = study::results_estimated(
         model,
         &mm.mesh,
         setup,
         solution,
         start.elapsed().as_secs_f64(),
+        adapted.estimate,
     );
     if model.mesh.adapt > 0 {
         results.adapt = adapted.rounds;

@@ -608,6 +608,20 @@ pub fn results(
     solution: &Solution,
     seconds: f64,
 ) -> SolveResults {
+    let estimate = crate::post::estimate::zienkiewicz_zhu(solution);
+    results_estimated(model, mesh, setup, solution, seconds, &estimate)
+}
+
+/// [`results`] with the solution's error estimate already computed (the
+/// adaptation has it), so that it is not recovered twice.
+pub fn results_estimated(
+    model: &Model,
+    mesh: &Mesh,
+    setup: &ProblemSetup,
+    solution: &Solution,
+    seconds: f64,
+    estimate: &crate::post::estimate::ErrorEstimate,
+) -> SolveResults {
     let report = &solution.report;
     let mut notes = setup.notes.clone();
     // An open boundary appends the Kelvin image of the exterior (region id
@@ -740,7 +754,7 @@ pub fn results(
             iterations: report.iterations,
             relative_residual: report.relative_residual,
             seconds,
-            error_estimate: Some(crate::post::estimate::zienkiewicz_zhu(solution).relative()),
+            error_estimate: Some(estimate.relative()),
             residual_history: report.residual_history.clone(),
             timings_s: TimingsInfo {
                 setup: report.timings.setup_s,
