@@ -196,24 +196,47 @@ impl Mesh {
     /// Unique edges and, per triangle, its three edges (for P2 mid-edge nodes:
     /// the mid-edge node of edge `e` is numbered `nodes.len() + e`).
     pub fn edge_topology(&self) -> EdgeTopology {
-        let mut keyed: Vec<(u64, u32)> = Vec::with_capacity(self.triangles.len() * 3);
+        // Bucket the half-edges by their lower node (a counting sort), then
+        // sort each short bucket by the upper node: edges come out in
+        // lexicographic order, in linear time (a global sort of the 3·T
+        // half-edges took four times as long at 2M triangles).
+        let n = self.nodes.len();
+        let mut start = vec![0u32; n + 1];
+        for tri in &self.triangles {
+            for k in 0..3 {
+                let (a, b) = (tri[k], tri[(k + 1) % 3]);
+                start[a.min(b) as usize + 1] += 1;
+            }
+        }
+        for v in 0..n {
+            start[v + 1] += start[v];
+        }
+        let mut fill = start.clone();
+        // upper node << 32 | half-edge slot t·3 + k, in buckets of the lower
+        // node (one u64 sorts faster than a pair).
+        let mut bucket = vec![0u64; 3 * self.triangles.len()];
         for (t, tri) in self.triangles.iter().enumerate() {
             for k in 0..3 {
                 let (a, b) = (tri[k], tri[(k + 1) % 3]);
-                let (lo, hi) = if a < b { (a, b) } else { (b, a) };
-                keyed.push((((lo as u64) << 32) | hi as u64, (t * 3 + k) as u32));
+                let lo = a.min(b) as usize;
+                bucket[fill[lo] as usize] = (u64::from(a.max(b)) << 32) | (t * 3 + k) as u64;
+                fill[lo] += 1;
             }
         }
-        keyed.sort_unstable_by_key(|e| e.0);
-        let mut edges = Vec::with_capacity(keyed.len() / 2 + 1);
+        let mut edges = Vec::with_capacity(bucket.len() / 2 + 1);
         let mut triangle_edges = vec![[0u32; 3]; self.triangles.len()];
-        let mut last = u64::MAX;
-        for (key, slot) in keyed {
-            if key != last {
-                edges.push([(key >> 32) as u32, key as u32]);
-                last = key;
+        for lo in 0..n {
+            let b = &mut bucket[start[lo] as usize..start[lo + 1] as usize];
+            b.sort_unstable();
+            let mut last = u32::MAX;
+            for &key in b.iter() {
+                let (hi, slot) = ((key >> 32) as u32, key as u32);
+                if hi != last {
+                    edges.push([lo as u32, hi]);
+                    last = hi;
+                }
+                triangle_edges[slot as usize / 3][slot as usize % 3] = (edges.len() - 1) as u32;
             }
-            triangle_edges[slot as usize / 3][slot as usize % 3] = (edges.len() - 1) as u32;
         }
         EdgeTopology {
             edges,
@@ -295,5 +318,67 @@ impl Mesh {
             }
         }
         Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A 3 × 2 grid of squares, each split into two triangles, with its
+    /// nodes numbered out of order so that buckets are not trivially sorted.
+    fn grid() -> Mesh {
+        let (nx, ny) = (4u32, 3u32);
+        let relabel = |i: u32| (i * 7) % (nx * ny); // 7 is prime to 12
+        let mut nodes = vec![[0.0; 2]; (nx * ny) as usize];
+        for j in 0..ny {
+            for i in 0..nx {
+                nodes[relabel(j * nx + i) as usize] = [i as f64, j as f64];
+            }
+        }
+        let mut triangles = Vec::new();
+        for j in 0..ny - 1 {
+            for i in 0..nx - 1 {
+                let [a, b, c, d] = [
+                    j * nx + i,
+                    j * nx + i + 1,
+                    (j + 1) * nx + i + 1,
+                    (j + 1) * nx + i,
+                ]
+                .map(relabel);
+                triangles.push([a, b, c]);
+                triangles.push([a, c, d]);
+            }
+        }
+        Mesh {
+            nodes,
+            regions: vec![0; triangles.len()],
+            triangles,
+            boundary: Vec::new(),
+            report: Default::default(),
+        }
+    }
+
+    #[test]
+    fn edge_topology_lists_each_edge_once_in_order() {
+        let m = grid();
+        let topo = m.edge_topology();
+        // The definition: the sorted, deduplicated (low, high) node pairs.
+        let mut expected: Vec<[u32; 2]> = m
+            .triangles
+            .iter()
+            .flat_map(|t| (0..3).map(move |k| [t[k].min(t[(k + 1) % 3]), t[k].max(t[(k + 1) % 3])]))
+            .collect();
+        expected.sort_unstable();
+        expected.dedup();
+        // 3 × 2 squares: 4·2 + 3·3 grid edges and 6 diagonals (Euler: E = V + F − 1).
+        assert_eq!(expected.len(), 12 + 12 - 1);
+        assert_eq!(topo.edges, expected);
+        for (t, te) in topo.triangle_edges.iter().enumerate() {
+            for k in 0..3 {
+                let (a, b) = (m.triangles[t][k], m.triangles[t][(k + 1) % 3]);
+                assert_eq!(topo.edges[te[k] as usize], [a.min(b), a.max(b)]);
+            }
+        }
     }
 }

@@ -9,7 +9,7 @@
 
 use crate::boundary::{Constraints, DofTarget};
 use crate::fe::quadrature::TriangleRule;
-use crate::fe::{self, packed_index, packed_len, ElementLoad, ElementOrder, Triangle, MAX_LOCAL};
+use crate::fe::{self, packed_len, ElementLoad, ElementOrder, Triangle, MAX_LOCAL};
 use crate::problem::{Problem, SolveError};
 use fluxwright_mesher::Mesh;
 use rayon::prelude::*;
@@ -184,6 +184,101 @@ pub struct Assembler<'p> {
     source_rule: TriangleRule,
 }
 
+/// Call `visit(pair slot, row, col, factor)` for every pair of free dofs of
+/// every triangle, where the pair slot is t · packed_len + packed_index(a, b)
+/// for local dofs a ≤ b, row ≤ col are their reduced unknowns and the factor
+/// is the product of their signs, doubled when two different local dofs are
+/// the same unknown (a dof and its periodic partner).
+fn for_each_pair(
+    element_dofs: &[u32],
+    n_loc: usize,
+    free: &[(u32, i8)],
+    mut visit: impl FnMut(usize, u32, u32, i8),
+) {
+    let n_pairs = packed_len(n_loc);
+    for (t, d) in element_dofs.chunks_exact(n_loc).enumerate() {
+        let local: [(u32, i8); MAX_LOCAL] = std::array::from_fn(|a| {
+            if a < n_loc {
+                free[d[a] as usize]
+            } else {
+                (u32::MAX, 0)
+            }
+        });
+        let mut k = t * n_pairs;
+        for a in 0..n_loc {
+            let (i, si) = local[a];
+            for (b, &(j, sj)) in local.iter().enumerate().take(n_loc).skip(a) {
+                if i != u32::MAX && j != u32::MAX {
+                    let twice = if b != a && i == j { 2 } else { 1 };
+                    visit(k, i.min(j), i.max(j), si * sj * twice);
+                }
+                k += 1;
+            }
+        }
+    }
+}
+
+/// The pattern of the reduced matrix and, for every local pair `k` of
+/// triangle `t` (packed upper triangle), the slot its entry adds into
+/// (`u32::MAX` for none) and its factor (±1, or ±2 for the off-diagonal
+/// pair of a dof and its periodic partner meeting in one element).
+///
+/// The pairs are bucketed by column (a counting sort) and each short column
+/// sorted by row: linear time, and every pair learns its slot on the way (a
+/// global sort of the pair keys plus a search per pair took twice as long at
+/// 2M P1 triangles).
+fn build_pattern(
+    n: usize,
+    element_dofs: &[u32],
+    n_loc: usize,
+    free: &[(u32, i8)],
+) -> (SparsityPattern, Vec<u32>, Vec<i8>) {
+    let n_pairs = packed_len(n_loc);
+    let n_tri = element_dofs.len() / n_loc;
+    let mut scatter = vec![u32::MAX; n_tri * n_pairs];
+    let mut factor = vec![0i8; n_tri * n_pairs];
+    let mut count = vec![0usize; n + 1];
+    for_each_pair(element_dofs, n_loc, free, |k, _, col, f| {
+        count[col as usize + 1] += 1;
+        factor[k] = f;
+    });
+    for c in 0..n {
+        count[c + 1] += count[c];
+    }
+    // row << 32 | pair slot, in buckets of the column (one u64 sorts faster
+    // than a pair).
+    let mut bucket = vec![0u64; count[n]];
+    let mut fill = count.clone();
+    for_each_pair(element_dofs, n_loc, free, |k, row, col, _| {
+        let c = col as usize;
+        bucket[fill[c]] = (u64::from(row) << 32) | k as u64;
+        fill[c] += 1;
+    });
+    drop(fill);
+    let mut col_ptr = vec![0usize; n + 1];
+    let mut row_idx = Vec::with_capacity(count[n] / 2 + n);
+    for c in 0..n {
+        let column = &mut bucket[count[c]..count[c + 1]];
+        column.sort_unstable();
+        let mut last = u32::MAX;
+        for &key in column.iter() {
+            let (row, slot) = ((key >> 32) as u32, key as u32);
+            if row != last {
+                row_idx.push(row as usize);
+                last = row;
+            }
+            scatter[slot as usize] = (row_idx.len() - 1) as u32;
+        }
+        col_ptr[c + 1] = row_idx.len();
+    }
+    let pattern = SparsityPattern {
+        n,
+        col_ptr,
+        row_idx,
+    };
+    (pattern, scatter, factor)
+}
+
 impl<'p> Assembler<'p> {
     /// Validate `problem`, number its dofs, resolve its constraints and
     /// build the pattern and scatter table.
@@ -193,7 +288,6 @@ impl<'p> Assembler<'p> {
         let dofs = DofMap::new(mesh, problem.order, problem.length_scale_m);
         let constraints = Constraints::new(problem, &dofs)?;
         let n_loc = problem.order.local_dofs();
-        let n_pairs = packed_len(n_loc);
         let n_tri = mesh.triangles.len();
         // validate() guarantees an entry per region, so regions is non-empty
         // whenever there is a triangle.
@@ -265,70 +359,17 @@ impl<'p> Assembler<'p> {
                 }))
             })
             .collect();
-        // Reduced (row, col, factor) of every local pair.
-        let reduced = |t: usize, a: usize, b: usize| -> Option<(u32, u32, i8)> {
-            let d = dofs.element(t);
-            match (
-                constraints.target[d[a] as usize],
-                constraints.target[d[b] as usize],
-            ) {
-                (
-                    DofTarget::Free { index: i, sign: si },
-                    DofTarget::Free { index: j, sign: sj },
-                ) => {
-                    let mult = if a != b && i == j { 2 } else { 1 };
-                    Some((i.min(j), i.max(j), (si * sj) as i8 * mult))
-                }
-                _ => None,
-            }
-        };
-        let mut keys: Vec<u64> = (0..n_tri)
-            .into_par_iter()
-            .flat_map_iter(|t| {
-                (0..n_loc)
-                    .flat_map(move |a| (a..n_loc).map(move |b| (a, b)))
-                    .filter_map(move |(a, b)| {
-                        reduced(t, a, b).map(|(row, col, _)| ((col as u64) << 32) | row as u64)
-                    })
+        // The reduced unknown and sign of every dof (u32::MAX: fixed).
+        let free: Vec<(u32, i8)> = constraints
+            .target
+            .iter()
+            .map(|t| match *t {
+                DofTarget::Free { index, sign } => (index, sign as i8),
+                DofTarget::Fixed(_) => (u32::MAX, 0),
             })
             .collect();
-        keys.par_sort_unstable();
-        keys.dedup();
-        let n = constraints.n_free;
-        let mut col_ptr = vec![0usize; n + 1];
-        let mut row_idx = Vec::with_capacity(keys.len());
-        for &k in &keys {
-            col_ptr[(k >> 32) as usize + 1] += 1;
-            row_idx.push((k & 0xffff_ffff) as usize);
-        }
-        for c in 0..n {
-            col_ptr[c + 1] += col_ptr[c];
-        }
-        let pattern = SparsityPattern {
-            n,
-            col_ptr,
-            row_idx,
-        };
-        let mut scatter = vec![u32::MAX; n_tri * n_pairs];
-        let mut factor = vec![0i8; n_tri * n_pairs];
-        scatter
-            .par_chunks_mut(n_pairs)
-            .zip(factor.par_chunks_mut(n_pairs))
-            .enumerate()
-            .for_each(|(t, (sc, fa))| {
-                for a in 0..n_loc {
-                    for b in a..n_loc {
-                        if let Some((row, col, f)) = reduced(t, a, b) {
-                            let k = packed_index(n_loc, a, b);
-                            // Every reduced pair was inserted above.
-                            sc[k] = pattern
-                                .position(row as usize, col as usize)
-                                .map_or(u32::MAX, |p| p as u32);
-                            fa[k] = f;
-                        }
-                    }
-                }
-            });
+        let (pattern, scatter, factor) =
+            build_pattern(constraints.n_free, &dofs.element_dofs, n_loc, &free);
         Ok(Assembler {
             problem,
             dofs,
