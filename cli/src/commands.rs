@@ -302,16 +302,18 @@ fn write_mesh_files(model: &Model, mesh: &Mesh, seconds: f64, staging: &mut Stag
                 .to_degrees()
         })
         .collect();
-    let doc = vtu::render(
-        &mesh.nodes,
-        vtu::Cells::Triangles(&mesh.triangles),
-        &[],
-        &[
-            vtu::Array::Int("shape", shape_index),
-            vtu::Array::Scalar("min_angle_deg", min_angle),
-        ],
-    );
-    staging.write("mesh.vtu", doc.as_bytes())?;
+    staging.write_with("mesh.vtu", |w| {
+        vtu::write(
+            w,
+            &mesh.nodes,
+            vtu::Cells::Triangles(mesh.triangles.as_flattened()),
+            &[],
+            &[
+                vtu::Array::Int("shape", shape_index),
+                vtu::Array::Scalar("min_angle_deg", min_angle),
+            ],
+        )
+    })?;
 
     // Regions for the picture: the outer region first, then each shape.
     let mut styles = vec![RegionStyle {
@@ -487,39 +489,29 @@ fn write_solved(
         .collect();
     // Quadratic elements are written as VTK quadratic triangles, whose
     // node order (corners, then mid-edges 0-1, 1-2, 2-0) is our dof order.
-    let quadratic: Vec<[u32; 6]>;
-    let linear: Vec<[u32; 3]>;
     let cells = if view_dofs.per_element == 6 {
-        quadratic = view_dofs
-            .elements
-            .chunks_exact(6)
-            .map(|c| [c[0], c[1], c[2], c[3], c[4], c[5]])
-            .collect();
-        vtu::Cells::QuadraticTriangles(&quadratic)
+        vtu::Cells::QuadraticTriangles(&view_dofs.elements)
     } else {
-        linear = view_dofs
-            .elements
-            .chunks_exact(3)
-            .map(|c| [c[0], c[1], c[2]])
-            .collect();
-        vtu::Cells::Triangles(&linear)
+        vtu::Cells::Triangles(&view_dofs.elements)
     };
-    let doc = vtu::render(
-        &view_dofs.points,
-        cells,
-        &[vtu::Array::Scalar("A", potential)],
-        &[
-            vtu::Array::Vector2("B", fields.iter().map(|f| f.b).collect()),
-            vtu::Array::Vector2("H", fields.iter().map(|f| f.h).collect()),
-            vtu::Array::Scalar(
-                "B_magnitude",
-                fields.iter().map(|f| f.b_magnitude).collect(),
-            ),
-            vtu::Array::Scalar("mu_r", fields.iter().map(|f| f.mu_r).collect()),
-            vtu::Array::Int("shape", shape_index),
-        ],
-    );
-    staging.write("fields.vtu", doc.as_bytes())?;
+    staging.write_with("fields.vtu", |w| {
+        vtu::write(
+            w,
+            &view_dofs.points,
+            cells,
+            &[vtu::Array::Scalar("A", potential)],
+            &[
+                vtu::Array::Vector2("B", fields.iter().map(|f| f.b).collect()),
+                vtu::Array::Vector2("H", fields.iter().map(|f| f.h).collect()),
+                vtu::Array::Scalar(
+                    "B_magnitude",
+                    fields.iter().map(|f| f.b_magnitude).collect(),
+                ),
+                vtu::Array::Scalar("mu_r", fields.iter().map(|f| f.mu_r).collect()),
+                vtu::Array::Int("shape", shape_index),
+            ],
+        )
+    })?;
     write_field_map(model, &model_mesh, solution, &view_dofs, view, &mut staging)?;
     for (name, samples) in study::profile_samples(model, solution) {
         let file = study::profile_file(&name);

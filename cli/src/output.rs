@@ -55,6 +55,22 @@ impl Staging {
         std::fs::write(&path, bytes).with_context(|| format!("cannot write {}", path.display()))
     }
 
+    /// Write output file `name` through a buffered writer handed to `body`
+    /// (for large files that are never held whole in memory).
+    pub fn write_with(
+        &mut self,
+        name: &str,
+        body: impl FnOnce(&mut std::io::BufWriter<std::fs::File>) -> std::io::Result<()>,
+    ) -> Result<()> {
+        let path = self.path(name)?;
+        let written = std::fs::File::create(&path).and_then(|f| {
+            let mut w = std::io::BufWriter::with_capacity(1 << 20, f);
+            body(&mut w)?;
+            std::io::Write::flush(&mut w)
+        });
+        written.with_context(|| format!("cannot write {}", path.display()))
+    }
+
     /// Move every staged file into the output directory, in the order
     /// written (so the summary file written last appears last).
     pub fn commit(mut self) -> Result<()> {

@@ -1,7 +1,7 @@
 //! VTK XML unstructured-grid (`.vtu`) writer, base64 binary inline, readable
 //! by ParaView and any VTK-based viewer.
 
-use std::fmt::Write as _;
+use std::io::{self, Write};
 
 /// A data array attached to points or cells.
 pub enum Array<'a> {
@@ -13,104 +13,100 @@ pub enum Array<'a> {
     Int(&'a str, Vec<i32>),
 }
 
-/// The cells of the grid.
+/// The cells of the grid, as flat connectivity.
 pub enum Cells<'a> {
-    /// Linear triangles (VTK type 5).
-    Triangles(&'a [[u32; 3]]),
-    /// Quadratic triangles (VTK type 22): corners, then the mid-edge nodes of
-    /// edges 0-1, 1-2, 2-0.
-    QuadraticTriangles(&'a [[u32; 6]]),
+    /// Linear triangles (VTK type 5), three nodes each.
+    Triangles(&'a [u32]),
+    /// Quadratic triangles (VTK type 22), six nodes each: corners, then the
+    /// mid-edge nodes of edges 0-1, 1-2, 2-0.
+    QuadraticTriangles(&'a [u32]),
 }
 
-/// Render a `.vtu` document.
-pub fn render(
+/// Write a `.vtu` document to `w`, streaming: no array is copied whole (a
+/// 1M-node P1 field file is about 300 MB).
+pub fn write(
+    w: &mut impl Write,
     points: &[[f64; 2]],
     cells: Cells,
     point_data: &[Array],
     cell_data: &[Array],
-) -> String {
-    let (n_cells, connectivity, nodes_per, vtk_type): (usize, Vec<i64>, usize, u8) = match cells {
-        Cells::Triangles(t) => (
-            t.len(),
-            t.iter().flatten().map(|&i| i as i64).collect(),
-            3,
-            5,
-        ),
-        Cells::QuadraticTriangles(t) => (
-            t.len(),
-            t.iter().flatten().map(|&i| i as i64).collect(),
-            6,
-            22,
-        ),
+) -> io::Result<()> {
+    let (connectivity, nodes_per, vtk_type): (&[u32], usize, u8) = match cells {
+        Cells::Triangles(c) => (c, 3, 5),
+        Cells::QuadraticTriangles(c) => (c, 6, 22),
     };
-    let mut s = String::with_capacity(64 * points.len() + 64 * n_cells);
-    s.push_str("<?xml version=\"1.0\"?>\n");
-    s.push_str("<VTKFile type=\"UnstructuredGrid\" version=\"1.0\" byte_order=\"LittleEndian\" header_type=\"UInt64\">\n");
-    s.push_str("<UnstructuredGrid>\n");
-    let _ = writeln!(
-        s,
+    let n_cells = connectivity.len() / nodes_per;
+    w.write_all(b"<?xml version=\"1.0\"?>\n")?;
+    w.write_all(b"<VTKFile type=\"UnstructuredGrid\" version=\"1.0\" byte_order=\"LittleEndian\" header_type=\"UInt64\">\n")?;
+    w.write_all(b"<UnstructuredGrid>\n")?;
+    writeln!(
+        w,
         "<Piece NumberOfPoints=\"{}\" NumberOfCells=\"{}\">",
         points.len(),
         n_cells
-    );
-    s.push_str("<Points>\n");
-    let xyz: Vec<f64> = points.iter().flat_map(|p| [p[0], p[1], 0.0]).collect();
-    data_array(&mut s, "Float64", "Points", 3, &f64_bytes(&xyz));
-    s.push_str("</Points>\n<Cells>\n");
-    data_array(
-        &mut s,
-        "Int64",
-        "connectivity",
-        1,
-        &i64_bytes(&connectivity),
-    );
-    let offsets: Vec<i64> = (1..=n_cells).map(|i| (i * nodes_per) as i64).collect();
-    data_array(&mut s, "Int64", "offsets", 1, &i64_bytes(&offsets));
-    data_array(&mut s, "UInt8", "types", 1, &vec![vtk_type; n_cells]);
-    s.push_str("</Cells>\n");
+    )?;
+    w.write_all(b"<Points>\n")?;
+    data_array(w, "Float64", "Points", 3, points.len() * 24, |e| {
+        points
+            .iter()
+            .try_for_each(|p| e.write_f64s(&[p[0], p[1], 0.0]))
+    })?;
+    w.write_all(b"</Points>\n<Cells>\n")?;
+    data_array(w, "Int64", "connectivity", 1, connectivity.len() * 8, |e| {
+        connectivity
+            .iter()
+            .try_for_each(|&i| e.write_all(&i64::from(i).to_le_bytes()))
+    })?;
+    data_array(w, "Int64", "offsets", 1, n_cells * 8, |e| {
+        (1..=n_cells).try_for_each(|i| e.write_all(&((i * nodes_per) as i64).to_le_bytes()))
+    })?;
+    data_array(w, "UInt8", "types", 1, n_cells, |e| {
+        (0..n_cells).try_for_each(|_| e.write_all(&[vtk_type]))
+    })?;
+    w.write_all(b"</Cells>\n")?;
     for (tag, arrays) in [("PointData", point_data), ("CellData", cell_data)] {
         if arrays.is_empty() {
             continue;
         }
-        let _ = writeln!(s, "<{tag}>");
+        writeln!(w, "<{tag}>")?;
         for a in arrays {
             match a {
-                Array::Scalar(name, v) => data_array(&mut s, "Float64", name, 1, &f64_bytes(v)),
-                Array::Vector2(name, v) => {
-                    let flat: Vec<f64> = v.iter().flat_map(|p| [p[0], p[1], 0.0]).collect();
-                    data_array(&mut s, "Float64", name, 3, &f64_bytes(&flat))
+                Array::Scalar(name, v) => {
+                    data_array(w, "Float64", name, 1, v.len() * 8, |e| e.write_f64s(v))?
                 }
-                Array::Int(name, v) => {
-                    let bytes: Vec<u8> = v.iter().flat_map(|x| x.to_le_bytes()).collect();
-                    data_array(&mut s, "Int32", name, 1, &bytes)
-                }
+                Array::Vector2(name, v) => data_array(w, "Float64", name, 3, v.len() * 24, |e| {
+                    v.iter().try_for_each(|p| e.write_f64s(&[p[0], p[1], 0.0]))
+                })?,
+                Array::Int(name, v) => data_array(w, "Int32", name, 1, v.len() * 4, |e| {
+                    v.iter().try_for_each(|x| e.write_all(&x.to_le_bytes()))
+                })?,
             }
         }
-        let _ = writeln!(s, "</{tag}>");
+        writeln!(w, "</{tag}>")?;
     }
-    s.push_str("</Piece>\n</UnstructuredGrid>\n</VTKFile>\n");
-    s
+    w.write_all(b"</Piece>\n</UnstructuredGrid>\n</VTKFile>\n")
 }
 
-fn data_array(s: &mut String, ty: &str, name: &str, components: usize, bytes: &[u8]) {
-    let _ = write!(
-        s,
+/// One binary data array: its byte count (UInt64 header), then the bytes
+/// `body` writes, base64 encoded as one stream.
+fn data_array<W: Write>(
+    w: &mut W,
+    ty: &str,
+    name: &str,
+    components: usize,
+    bytes: usize,
+    body: impl FnOnce(&mut Base64<&mut W>) -> io::Result<()>,
+) -> io::Result<()> {
+    write!(
+        w,
         "<DataArray type=\"{ty}\" Name=\"{}\" NumberOfComponents=\"{components}\" format=\"binary\">",
         xml_escape(name)
-    );
-    let mut block = Vec::with_capacity(bytes.len() + 8);
-    block.extend_from_slice(&(bytes.len() as u64).to_le_bytes());
-    block.extend_from_slice(bytes);
-    base64_into(s, &block);
-    s.push_str("</DataArray>\n");
-}
-
-fn f64_bytes(v: &[f64]) -> Vec<u8> {
-    v.iter().flat_map(|x| x.to_le_bytes()).collect()
-}
-
-fn i64_bytes(v: &[i64]) -> Vec<u8> {
-    v.iter().flat_map(|x| x.to_le_bytes()).collect()
+    )?;
+    let mut e = Base64::new(&mut *w);
+    e.write_all(&(bytes as u64).to_le_bytes())?;
+    body(&mut e)?;
+    e.finish()?;
+    w.write_all(b"</DataArray>\n")
 }
 
 fn xml_escape(s: &str) -> String {
@@ -120,25 +116,75 @@ fn xml_escape(s: &str) -> String {
         .replace('"', "&quot;")
 }
 
-/// Standard base64 (RFC 4648) with padding.
-fn base64_into(s: &mut String, bytes: &[u8]) {
-    const ALPHABET: &[u8; 64] = b"ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
-    s.reserve(bytes.len().div_ceil(3) * 4);
-    for chunk in bytes.chunks(3) {
-        let b = [
-            chunk[0],
-            *chunk.get(1).unwrap_or(&0),
-            *chunk.get(2).unwrap_or(&0),
-        ];
-        let n = ((b[0] as u32) << 16) | ((b[1] as u32) << 8) | b[2] as u32;
-        let out = [(n >> 18) & 63, (n >> 12) & 63, (n >> 6) & 63, n & 63];
-        for (k, &c) in out.iter().enumerate() {
-            if k <= chunk.len() {
-                s.push(ALPHABET[c as usize] as char);
-            } else {
-                s.push('=');
+/// A streaming standard base64 (RFC 4648) encoder with padding: bytes
+/// written are encoded in blocks; [`Base64::finish`] encodes the tail.
+struct Base64<W: Write> {
+    out: W,
+    /// Bytes not yet encoded (fewer than `BLOCK` between writes).
+    pending: Vec<u8>,
+    encoded: Vec<u8>,
+}
+
+/// Bytes encoded at a time (a multiple of 3).
+const BLOCK: usize = 3 * 4096;
+
+impl<W: Write> Base64<W> {
+    fn new(out: W) -> Self {
+        Base64 {
+            out,
+            pending: Vec::with_capacity(BLOCK + 64),
+            encoded: Vec::with_capacity(BLOCK / 3 * 4 + 4),
+        }
+    }
+
+    fn write_f64s(&mut self, v: &[f64]) -> io::Result<()> {
+        v.iter().try_for_each(|x| self.write_all(&x.to_le_bytes()))
+    }
+
+    /// Encode what is pending, padding the last group.
+    fn finish(mut self) -> io::Result<()> {
+        let tail = std::mem::take(&mut self.pending);
+        self.encode(&tail)
+    }
+
+    fn encode(&mut self, bytes: &[u8]) -> io::Result<()> {
+        const ALPHABET: &[u8; 64] =
+            b"ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
+        self.encoded.clear();
+        for chunk in bytes.chunks(3) {
+            let b = [
+                chunk[0],
+                *chunk.get(1).unwrap_or(&0),
+                *chunk.get(2).unwrap_or(&0),
+            ];
+            let n = ((b[0] as u32) << 16) | ((b[1] as u32) << 8) | b[2] as u32;
+            for (k, shift) in [18, 12, 6, 0].into_iter().enumerate() {
+                self.encoded.push(if k <= chunk.len() {
+                    ALPHABET[((n >> shift) & 63) as usize]
+                } else {
+                    b'='
+                });
             }
         }
+        self.out.write_all(&self.encoded)
+    }
+}
+
+impl<W: Write> Write for Base64<W> {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        self.pending.extend_from_slice(buf);
+        if self.pending.len() >= BLOCK {
+            let full = self.pending.len() / 3 * 3;
+            let block = std::mem::take(&mut self.pending);
+            self.encode(&block[..full])?;
+            self.pending = block;
+            self.pending.drain(..full);
+        }
+        Ok(buf.len())
+    }
+
+    fn flush(&mut self) -> io::Result<()> {
+        self.out.flush()
     }
 }
 
@@ -158,22 +204,45 @@ mod tests {
             ("fooba", "Zm9vYmE="),
             ("foobar", "Zm9vYmFy"),
         ] {
-            let mut s = String::new();
-            base64_into(&mut s, input.as_bytes());
-            assert_eq!(s, expected, "input {input:?}");
+            let mut out = Vec::new();
+            let mut e = Base64::new(&mut out);
+            e.write_all(input.as_bytes()).unwrap();
+            e.finish().unwrap();
+            assert_eq!(String::from_utf8(out).unwrap(), expected, "input {input:?}");
         }
+    }
+
+    #[test]
+    fn base64_streams_across_blocks_as_in_one_piece() {
+        let bytes: Vec<u8> = (0..2 * BLOCK + 5).map(|i| (i * 7 % 251) as u8).collect();
+        let encode = |piece: usize| {
+            let mut out = Vec::new();
+            let mut e = Base64::new(&mut out);
+            for chunk in bytes.chunks(piece) {
+                e.write_all(chunk).unwrap();
+            }
+            e.finish().unwrap();
+            out
+        };
+        let whole = encode(bytes.len());
+        assert_eq!(whole.len(), bytes.len().div_ceil(3) * 4);
+        assert_eq!(encode(7), whole);
+        assert_eq!(encode(BLOCK + 1), whole);
     }
 
     #[test]
     fn vtu_has_counts_and_arrays() {
         let pts = [[0.0, 0.0], [1.0, 0.0], [0.0, 1.0]];
-        let tris = [[0u32, 1, 2]];
-        let doc = render(
+        let mut out = Vec::new();
+        write(
+            &mut out,
             &pts,
-            Cells::Triangles(&tris),
+            Cells::Triangles(&[0, 1, 2]),
             &[],
             &[Array::Int("shape", vec![3])],
-        );
+        )
+        .unwrap();
+        let doc = String::from_utf8(out).unwrap();
         assert!(doc.contains("NumberOfPoints=\"3\" NumberOfCells=\"1\""));
         assert!(doc.contains("Name=\"shape\""));
         assert!(doc.ends_with("</VTKFile>\n"));

@@ -423,3 +423,99 @@ fn merge_accepts_an_empty_shard() {
     assert_eq!(o.status.code(), Some(1));
     assert!(String::from_utf8_lossy(&o.stderr).contains("hold different sweeps"));
 }
+
+/// The binary arrays of a `.vtu` file written by `solve`, decoded with the
+/// `base64` crate (an implementation independent of ours): name → bytes,
+/// after checking each array's UInt64 byte-count header.
+fn vtu_arrays(doc: &str) -> std::collections::BTreeMap<String, Vec<u8>> {
+    use base64::Engine as _;
+    let mut arrays = std::collections::BTreeMap::new();
+    for part in doc.split("<DataArray ").skip(1) {
+        let name = part
+            .split("Name=\"")
+            .nth(1)
+            .unwrap()
+            .split('"')
+            .next()
+            .unwrap();
+        let body = part.split('>').nth(1).unwrap().split('<').next().unwrap();
+        let bytes = base64::engine::general_purpose::STANDARD
+            .decode(body)
+            .unwrap_or_else(|e| panic!("{name}: not base64: {e}"));
+        let header = u64::from_le_bytes(bytes[..8].try_into().unwrap()) as usize;
+        assert_eq!(header, bytes.len() - 8, "{name}: byte-count header");
+        arrays.insert(name.to_string(), bytes[8..].to_vec());
+    }
+    arrays
+}
+
+fn f64s(bytes: &[u8]) -> Vec<f64> {
+    bytes
+        .chunks_exact(8)
+        .map(|c| f64::from_le_bytes(c.try_into().unwrap()))
+        .collect()
+}
+
+#[test]
+fn fields_vtu_reads_back_and_holds_the_stored_energy() {
+    // First-order elements: B and H are constant in each triangle, so
+    // ½ Σ B·H · area · depth over the cells of fields.vtu is exactly the
+    // stored energy of a linear model (W = ½∫B·H dV), which results.json
+    // reports from the solver's own quadrature.
+    let dir = scratch("vtu-energy");
+    let model = write(
+        &dir,
+        "core.toml",
+        &SMALL_CORE.replace("depth = 20", "depth = 20\nelement_order = 1"),
+    );
+    let out_dir = dir.join("out");
+    let out = fluxwright(&[
+        "solve",
+        model.to_str().unwrap(),
+        "-o",
+        out_dir.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let doc = std::fs::read_to_string(out_dir.join("fields.vtu")).unwrap();
+    let count = |key: &str| -> usize {
+        doc.split(&format!("{key}=\""))
+            .nth(1)
+            .unwrap()
+            .split('"')
+            .next()
+            .unwrap()
+            .parse()
+            .unwrap()
+    };
+    let (n_points, n_cells) = (count("NumberOfPoints"), count("NumberOfCells"));
+    let a = vtu_arrays(&doc);
+    let points = f64s(&a["Points"]);
+    let cells: Vec<usize> = a["connectivity"]
+        .chunks_exact(8)
+        .map(|c| i64::from_le_bytes(c.try_into().unwrap()) as usize)
+        .collect();
+    assert_eq!(points.len(), 3 * n_points);
+    assert_eq!(cells.len(), 3 * n_cells);
+    assert!(cells.iter().all(|&i| i < n_points));
+    assert_eq!(a["types"], vec![5u8; n_cells]);
+    assert_eq!(f64s(&a["A"]).len(), n_points);
+    let (b, h, magnitude) = (f64s(&a["B"]), f64s(&a["H"]), f64s(&a["B_magnitude"]));
+    let mut energy = 0.0;
+    for (t, c) in cells.chunks_exact(3).enumerate() {
+        let p = |k: usize| [points[3 * c[k]], points[3 * c[k] + 1]];
+        let (p0, p1, p2) = (p(0), p(1), p(2));
+        let area_mm2 =
+            0.5 * ((p1[0] - p0[0]) * (p2[1] - p0[1]) - (p2[0] - p0[0]) * (p1[1] - p0[1]));
+        let bt = [b[3 * t], b[3 * t + 1]];
+        assert!((bt[0].hypot(bt[1]) - magnitude[t]).abs() <= 1e-12 * magnitude[t].max(1e-30));
+        energy += 0.5 * (bt[0] * h[3 * t] + bt[1] * h[3 * t + 1]) * area_mm2 * 1e-6 * 0.020;
+    }
+    let results: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out_dir.join("results.json")).unwrap())
+            .unwrap();
+    let reported = results["energy_j"].as_f64().unwrap();
+    assert!(
+        (energy / reported - 1.0).abs() < 1e-9,
+        "energy from fields.vtu {energy:e} J, results.json {reported:e} J"
+    );
+}
