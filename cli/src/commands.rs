@@ -469,6 +469,10 @@ fn write_solved(
         start.elapsed().as_secs_f64(),
         adapted.estimate,
     );
+    // The results hold what needed the tangent factorisation (incremental
+    // inductances): free it before the field files (about 300 MB at 1M
+    // unknowns).
+    drop(solution.take_solver());
     if model.mesh.adapt > 0 {
         results.adapt = adapted.rounds;
         results.notes.extend(adapted.stopped);

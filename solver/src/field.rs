@@ -211,7 +211,7 @@ impl<'p> Solution<'p> {
 
     fn basis(&self, t: usize, l: [f64; 3]) -> CurlBasis {
         let p = self.assembler.problem();
-        CurlBasis::at(self.assembler.triangle(t), p.order, p.symmetry, l)
+        CurlBasis::at(&self.assembler.triangle(t), p.order, p.symmetry, l)
     }
 
     /// The field in triangle `t` at barycentric point `l`.

@@ -96,9 +96,9 @@ pub fn zienkiewicz_zhu(solution: &Solution) -> ErrorEstimate {
         .map(|t| {
             let mut b = [[0.0; 2]; MAX_LOCAL];
             if counted[t] {
-                let ul = local_values(solution, t);
+                let (ul, tri) = (local_values(solution, t), asm.triangle(t));
                 for (a, l) in nodes.iter().enumerate() {
-                    b[a] = CurlBasis::at(asm.triangle(t), order, symmetry, *l).flux_density(&ul);
+                    b[a] = CurlBasis::at(&tri, order, symmetry, *l).flux_density(&ul);
                 }
             }
             b
@@ -150,7 +150,7 @@ pub fn zienkiewicz_zhu(solution: &Solution) -> ErrorEstimate {
             let material = &asm.region_props(t).material;
             let (mut err, mut norm) = (0.0, 0.0);
             for (l, w) in rule.points.iter().zip(&rule.weights) {
-                let basis = CurlBasis::at(tri, order, symmetry, *l);
+                let basis = CurlBasis::at(&tri, order, symmetry, *l);
                 let b = basis.flux_density(&ul);
                 let mut star = [0.0; 2];
                 for a in 0..n_loc {
@@ -199,7 +199,7 @@ pub fn relative_energy_error(
             let material = &asm.region_props(t).material;
             let (mut err, mut norm) = (0.0, 0.0);
             for (l, w) in rule.points.iter().zip(&rule.weights) {
-                let basis = CurlBasis::at(tri, order, symmetry, *l);
+                let basis = CurlBasis::at(&tri, order, symmetry, *l);
                 let b = basis.flux_density(&ul);
                 let e = exact(t, [basis.x[0] / s, basis.x[1] / s]);
                 let weight = w * tri.area * basis.volume_factor * material.at(b).nu;

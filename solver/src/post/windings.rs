@@ -157,7 +157,7 @@ fn linkage_vector(solution: &Solution, spec: &WindingSpec) -> Result<Vec<f64>, W
             let tri = asm.triangle(t);
             let dofs = solution.dofs().element(t);
             for (l, w) in rule.points.iter().zip(&rule.weights) {
-                let basis = CurlBasis::at(tri, problem.order, problem.symmetry, *l);
+                let basis = CurlBasis::at(&tri, problem.order, problem.symmetry, *l);
                 let weight = density * w * tri.area * basis.volume_factor;
                 for (&d, n) in dofs.iter().zip(&basis.value) {
                     g[d as usize] += weight * n;
