@@ -284,24 +284,23 @@ fn write_mesh_files(model: &Model, mesh: &Mesh, seconds: f64, staging: &mut Stag
             area: 0.0,
         });
     }
+    let min_angle: Vec<f64> = (0..mesh.triangles.len())
+        .map(|t| mesh.min_angle(t).to_degrees())
+        .collect();
     let report = MeshReport {
         format: "fluxwright-mesh/1",
         nodes: mesh.nodes.len(),
         triangles: mesh.triangles.len(),
-        min_angle_deg: mesh.quality().min_angle_deg,
+        min_angle_deg: if min_angle.is_empty() {
+            0.0
+        } else {
+            min_angle.iter().copied().fold(f64::INFINITY, f64::min)
+        },
         seconds,
         shapes,
     };
 
     let shape_index = shape_indices(mesh);
-    let min_angle: Vec<f64> = (0..mesh.triangles.len())
-        .map(|t| {
-            mesh.triangle_angles(t)
-                .into_iter()
-                .fold(f64::INFINITY, f64::min)
-                .to_degrees()
-        })
-        .collect();
     staging.write_with("mesh.vtu", |w| {
         vtu::write(
             w,

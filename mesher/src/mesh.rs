@@ -147,6 +147,31 @@ impl Mesh {
         out
     }
 
+    /// The smallest angle of triangle `t`, radians: the one opposite its
+    /// shortest edge, so one `atan2` instead of three.
+    pub fn min_angle(&self, t: usize) -> f64 {
+        let p = self.triangles[t].map(|i| self.nodes[i as usize]);
+        let l2 = |k: usize| {
+            let (a, b) = (p[(k + 1) % 3], p[(k + 2) % 3]);
+            (a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2)
+        };
+        // Vertex k faces edge (k+1, k+2).
+        let (l0, l1, l2) = (l2(0), l2(1), l2(2));
+        let k = if l0 <= l1 && l0 <= l2 {
+            0
+        } else if l1 <= l2 {
+            1
+        } else {
+            2
+        };
+        let (a, b, c) = (p[k], p[(k + 1) % 3], p[(k + 2) % 3]);
+        let u = [b[0] - a[0], b[1] - a[1]];
+        let v = [c[0] - a[0], c[1] - a[1]];
+        (u[0] * v[1] - u[1] * v[0])
+            .abs()
+            .atan2(u[0] * v[0] + u[1] * v[1])
+    }
+
     /// Total area of the triangles of each region: `(region, area)` pairs
     /// sorted by region, [`Mesh::OUTER_REGION`] last.
     pub fn region_areas(&self) -> Vec<(u32, f64)> {
@@ -161,22 +186,21 @@ impl Mesh {
     pub fn quality(&self) -> QualityStats {
         let mut min_angle = f64::INFINITY;
         let mut sum_min = 0.0;
-        let mut len = [f64::INFINITY, 0.0f64];
+        // Squared edge lengths; the square roots of the extremes at the end.
+        let mut len2 = [f64::INFINITY, 0.0f64];
         for (t, tri) in self.triangles.iter().enumerate() {
-            let m = self
-                .triangle_angles(t)
-                .into_iter()
-                .fold(f64::INFINITY, f64::min);
+            let m = self.min_angle(t);
             min_angle = min_angle.min(m);
             sum_min += m;
             for k in 0..3 {
                 let a = self.nodes[tri[k] as usize];
                 let b = self.nodes[tri[(k + 1) % 3] as usize];
-                let l = (b[0] - a[0]).hypot(b[1] - a[1]);
-                len[0] = len[0].min(l);
-                len[1] = len[1].max(l);
+                let l2 = (b[0] - a[0]).powi(2) + (b[1] - a[1]).powi(2);
+                len2[0] = len2[0].min(l2);
+                len2[1] = len2[1].max(l2);
             }
         }
+        let len = len2.map(f64::sqrt);
         let n = self.triangles.len().max(1) as f64;
         QualityStats {
             min_angle_deg: if self.triangles.is_empty() {
@@ -357,6 +381,43 @@ mod tests {
             boundary: Vec::new(),
             report: Default::default(),
         }
+    }
+
+    #[test]
+    fn min_angle_is_the_smallest_of_the_three() {
+        // A 3-4-5 right triangle (smallest angle atan(3/4)), a sliver and an
+        // equilateral triangle, each in all three vertex rotations.
+        let corners = [
+            [[0.0, 0.0], [4.0, 0.0], [4.0, 3.0]],
+            [[0.0, 0.0], [10.0, 0.0], [5.0, 0.01]],
+            [[0.0, 0.0], [1.0, 0.0], [0.5, 0.75f64.sqrt()]],
+        ];
+        for c in corners {
+            for r in 0..3 {
+                let m = Mesh {
+                    nodes: (0..3).map(|k| c[(k + r) % 3]).collect(),
+                    triangles: vec![[0, 1, 2]],
+                    regions: vec![0],
+                    boundary: Vec::new(),
+                    report: Default::default(),
+                };
+                let all = m.triangle_angles(0);
+                let expected = all.into_iter().fold(f64::INFINITY, f64::min);
+                assert!(
+                    (m.min_angle(0) - expected).abs() < 1e-14,
+                    "{c:?} rotated {r}"
+                );
+                assert!((all.iter().sum::<f64>() - std::f64::consts::PI).abs() < 1e-12);
+            }
+        }
+        let right = Mesh {
+            nodes: corners[0].to_vec(),
+            triangles: vec![[0, 1, 2]],
+            regions: vec![0],
+            boundary: Vec::new(),
+            report: Default::default(),
+        };
+        assert!((right.min_angle(0) - 0.75f64.atan()).abs() < 1e-14);
     }
 
     #[test]
