@@ -240,8 +240,8 @@ fn region_name(model: &Model, region: u32) -> String {
 
 fn mesh(model: &Model, out: &Path) -> Result<u8> {
     let (mesh, seconds) = build_mesh(model)?;
-    let mut staging = Staging::new(out)?;
-    write_mesh_files(model, &mesh, seconds, &mut staging)?;
+    let staging = Staging::new(out)?;
+    write_mesh_files(model, &mesh, seconds, &staging)?;
     staging.commit()?;
     let q = mesh.quality();
     println!(
@@ -262,7 +262,7 @@ fn mesh(model: &Model, out: &Path) -> Result<u8> {
     Ok(0)
 }
 
-fn write_mesh_files(model: &Model, mesh: &Mesh, seconds: f64, staging: &mut Staging) -> Result<()> {
+fn write_mesh_files(model: &Model, mesh: &Mesh, seconds: f64, staging: &Staging) -> Result<()> {
     let mut shapes: BTreeMap<String, ShapeMeshReport> = BTreeMap::new();
     let mut counts: BTreeMap<u32, usize> = BTreeMap::new();
     for &r in &mesh.regions {
@@ -477,45 +477,21 @@ fn write_solved(
         results.notes.extend(adapted.stopped);
     }
 
-    let mut staging = Staging::new(out)?;
-    write_mesh_files(model, &model_mesh, mesh_seconds, &mut staging)?;
+    let staging = Staging::new(out)?;
     // Everything below shows the model only, not the Kelvin image of the
     // exterior that an open boundary appends to the mesh.
     let n_tri = model_mesh.triangles.len();
-    let fields = &solution.element_fields()[..n_tri];
-    let shape_index = shape_indices(&model_mesh);
     let view_dofs = ViewDofs::new(solution, n_tri, model.unit_to_m());
-    let potential: Vec<f64> = view_dofs
-        .kept
-        .iter()
-        .map(|&d| solution.potential()[d as usize])
-        .collect();
-    // Quadratic elements are written as VTK quadratic triangles, whose
-    // node order (corners, then mid-edges 0-1, 1-2, 2-0) is our dof order.
-    let cells = if view_dofs.per_element == 6 {
-        vtu::Cells::QuadraticTriangles(&view_dofs.elements)
-    } else {
-        vtu::Cells::Triangles(&view_dofs.elements)
-    };
-    staging.write_with("fields.vtu", |w| {
-        vtu::write(
-            w,
-            &view_dofs.points,
-            cells,
-            &[vtu::Array::Scalar("A", potential)],
-            &[
-                vtu::Array::Vector2("B", fields.iter().map(|f| f.b).collect()),
-                vtu::Array::Vector2("H", fields.iter().map(|f| f.h).collect()),
-                vtu::Array::Scalar(
-                    "B_magnitude",
-                    fields.iter().map(|f| f.b_magnitude).collect(),
-                ),
-                vtu::Array::Scalar("mu_r", fields.iter().map(|f| f.mu_r).collect()),
-                vtu::Array::Int("shape", shape_index),
-            ],
-        )
-    })?;
-    write_field_map(model, &model_mesh, solution, &view_dofs, view, &mut staging)?;
+    // The VTU files (mostly writing) and the field map (mostly drawing) go
+    // side by side.
+    let (files, map) = rayon::join(
+        || -> Result<()> {
+            write_mesh_files(model, &model_mesh, mesh_seconds, &staging)?;
+            write_fields_vtu(solution, &model_mesh, &view_dofs, &staging)
+        },
+        || write_field_map(model, &model_mesh, solution, &view_dofs, view, &staging),
+    );
+    files.and(map)?;
     for (name, samples) in study::profile_samples(model, solution) {
         let file = study::profile_file(&name);
         staging.write(
@@ -557,6 +533,46 @@ fn write_solved(
         );
         Ok(3)
     }
+}
+
+/// fields.vtu: A at the nodes; B, H, |B|, μr and the shape per triangle.
+fn write_fields_vtu(
+    solution: &fluxwright_solver::field::Solution,
+    model_mesh: &Mesh,
+    view_dofs: &ViewDofs,
+    staging: &Staging,
+) -> Result<()> {
+    let fields = &solution.element_fields()[..model_mesh.triangles.len()];
+    let potential: Vec<f64> = view_dofs
+        .kept
+        .iter()
+        .map(|&d| solution.potential()[d as usize])
+        .collect();
+    // Quadratic elements are written as VTK quadratic triangles, whose
+    // node order (corners, then mid-edges 0-1, 1-2, 2-0) is our dof order.
+    let cells = if view_dofs.per_element == 6 {
+        vtu::Cells::QuadraticTriangles(&view_dofs.elements)
+    } else {
+        vtu::Cells::Triangles(&view_dofs.elements)
+    };
+    staging.write_with("fields.vtu", |w| {
+        vtu::write(
+            w,
+            &view_dofs.points,
+            cells,
+            &[vtu::Array::Scalar("A", potential)],
+            &[
+                vtu::Array::Vector2("B", fields.iter().map(|f| f.b).collect()),
+                vtu::Array::Vector2("H", fields.iter().map(|f| f.h).collect()),
+                vtu::Array::Scalar(
+                    "B_magnitude",
+                    fields.iter().map(|f| f.b_magnitude).collect(),
+                ),
+                vtu::Array::Scalar("mu_r", fields.iter().map(|f| f.mu_r).collect()),
+                vtu::Array::Int("shape", shape_indices(model_mesh)),
+            ],
+        )
+    })
 }
 
 /// The shape index of each triangle for VTK files, −1 for the outer region.
@@ -731,7 +747,7 @@ fn write_field_map(
     solution: &fluxwright_solver::field::Solution,
     view_dofs: &ViewDofs,
     view: Option<[f64; 4]>,
-    staging: &mut Staging,
+    staging: &Staging,
 ) -> Result<()> {
     let quadratic = view_dofs.per_element == 6;
     let mut cells = Vec::with_capacity(mesh.triangles.len() * if quadratic { 4 } else { 1 });

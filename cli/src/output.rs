@@ -6,12 +6,15 @@
 
 use anyhow::{Context, Result};
 use std::path::{Path, PathBuf};
+use std::sync::Mutex;
 
 /// A set of output files being written.
 pub struct Staging {
     out: PathBuf,
     tmp: PathBuf,
-    files: Vec<PathBuf>,
+    /// Files staged, in the order first asked for (shared by writers on
+    /// several threads).
+    files: Mutex<Vec<PathBuf>>,
     committed: bool,
 }
 
@@ -29,28 +32,29 @@ impl Staging {
         Ok(Staging {
             out: out.to_path_buf(),
             tmp,
-            files: Vec::new(),
+            files: Mutex::new(Vec::new()),
             committed: false,
         })
     }
 
     /// The staging path of output file `name` (may contain `/`), for writers
     /// that want a path. The file is moved into place by [`Staging::commit`].
-    pub fn path(&mut self, name: &str) -> Result<PathBuf> {
+    pub fn path(&self, name: &str) -> Result<PathBuf> {
         let rel = PathBuf::from(name);
         let path = self.tmp.join(&rel);
         if let Some(parent) = path.parent() {
             std::fs::create_dir_all(parent)
                 .with_context(|| format!("cannot create {}", parent.display()))?;
         }
-        if !self.files.contains(&rel) {
-            self.files.push(rel);
+        let mut files = self.files.lock().unwrap_or_else(|p| p.into_inner());
+        if !files.contains(&rel) {
+            files.push(rel);
         }
         Ok(path)
     }
 
     /// Write output file `name` with `bytes`.
-    pub fn write(&mut self, name: &str, bytes: &[u8]) -> Result<()> {
+    pub fn write(&self, name: &str, bytes: &[u8]) -> Result<()> {
         let path = self.path(name)?;
         std::fs::write(&path, bytes).with_context(|| format!("cannot write {}", path.display()))
     }
@@ -58,7 +62,7 @@ impl Staging {
     /// Write output file `name` through a buffered writer handed to `body`
     /// (for large files that are never held whole in memory).
     pub fn write_with(
-        &mut self,
+        &self,
         name: &str,
         body: impl FnOnce(&mut std::io::BufWriter<std::fs::File>) -> std::io::Result<()>,
     ) -> Result<()> {
@@ -74,7 +78,8 @@ impl Staging {
     /// Move every staged file into the output directory, in the order
     /// written (so the summary file written last appears last).
     pub fn commit(mut self) -> Result<()> {
-        for rel in &self.files {
+        let files = std::mem::take(self.files.get_mut().unwrap_or_else(|p| p.into_inner()));
+        for rel in &files {
             let from = self.tmp.join(rel);
             let to = self.out.join(rel);
             if let Some(parent) = to.parent() {

@@ -67,7 +67,7 @@ pub fn sweep(model: &Model, out: &Path, shard: Option<Shard>) -> Result<u8> {
     bar.finish_and_clear();
     let steps = steps?;
 
-    let mut staging = Staging::new(out)?;
+    let staging = Staging::new(out)?;
     for s in &steps {
         staging.write(
             &format!("steps/{:03}.json", s.index),
@@ -226,7 +226,7 @@ pub fn merge(dirs: &[PathBuf], out: &Path) -> Result<u8> {
         header: header.clone(),
         rows: rows.into_iter().map(|r| r.1).collect(),
     };
-    let mut staging = Staging::new(out)?;
+    let staging = Staging::new(out)?;
     for (d, index, _) in &parts {
         for k in &index.steps {
             let name = format!("steps/{k:03}.json");
