@@ -106,18 +106,29 @@ pub fn zienkiewicz_zhu(solution: &Solution) -> ErrorEstimate {
         .collect();
 
     // Area-weighted sums per (dof, region): one slot each, in order of
-    // first appearance (deterministic).
-    let mut slot_of_key: HashMap<(u32, u32), u32> = HashMap::new();
+    // first appearance (deterministic). Most dofs lie in one region: their
+    // slot is found directly; only interface dofs need the map.
+    let mut first: Vec<(u32, u32)> = vec![(0, u32::MAX); solution.dofs().n_dofs];
+    let mut others: HashMap<(u32, u32), u32> = HashMap::new();
     let mut sums: Vec<[f64; 3]> = Vec::new();
     let mut slot = vec![u32::MAX; n_tri * n_loc];
     for t in (0..n_tri).filter(|&t| counted[t]) {
         let w = asm.triangle(t).area;
         let region = mesh.regions[t];
         for (a, &d) in solution.dofs().element(t).iter().enumerate() {
-            let s = *slot_of_key.entry((d, region)).or_insert_with(|| {
+            let mut fresh = || {
                 sums.push([0.0; 3]);
                 (sums.len() - 1) as u32
-            });
+            };
+            let s = match first[d as usize] {
+                (_, u32::MAX) => {
+                    let s = fresh();
+                    first[d as usize] = (region, s);
+                    s
+                }
+                (r, s) if r == region => s,
+                _ => *others.entry((d, region)).or_insert_with(fresh),
+            };
             let acc = &mut sums[s as usize];
             acc[0] += w * nodal[t][a][0];
             acc[1] += w * nodal[t][a][1];
