@@ -81,6 +81,9 @@ pub struct Timings {
     pub factor_s: f64,
     /// All triangular solves.
     pub solve_s: f64,
+    /// The whole solve, set-up to last step: less than the sum of the
+    /// phases, since the analysis and the first assembly run side by side.
+    pub total_s: f64,
 }
 
 /// What the nonlinear iteration did.
@@ -196,34 +199,47 @@ fn run<'p>(
     let mut x = vec![0.0; n];
     let mut values = vec![0.0; assembler.pattern.nnz()];
     let mut residual = vec![0.0; n];
-    let clock = Instant::now();
-    solver.analyze_with_points(&assembler.pattern, &assembler.unknown_points())?;
-    timings.analyze_s = clock.elapsed().as_secs_f64();
-
-    let clock = Instant::now();
     let guess = guess_start.filter(|g| g.len() == u.len() && n > 0);
-    // With a start to try, the cold residual only sets the reference: its
-    // tangent is not needed unless the start is not used.
-    assembler.assemble(
-        &u,
-        guess.is_none().then_some(values.as_mut_slice()),
-        &mut residual,
+    // The symbolic analysis needs only the pattern, the first assembly only
+    // the potential: they run side by side (the analysis is partly
+    // sequential).
+    let (analyzed, (warm, reference, assembly_s)) = rayon::join(
+        || {
+            let clock = Instant::now();
+            let analyzed =
+                solver.analyze_with_points(&assembler.pattern, &assembler.unknown_points());
+            (analyzed, clock.elapsed().as_secs_f64())
+        },
+        || {
+            let clock = Instant::now();
+            // With a start to try, the cold residual only sets the
+            // reference: its tangent is not needed unless the start is not
+            // used.
+            assembler.assemble(
+                &u,
+                guess.is_none().then_some(values.as_mut_slice()),
+                &mut residual,
+            );
+            let reference = norm(&residual);
+            let warm = match guess {
+                Some(guess) if reference > 0.0 => {
+                    reduce(&assembler.constraints.target, guess, &mut x);
+                    assembler.constraints.expand(&x, &mut u);
+                    assembler.assemble(&u, Some(&mut values), &mut residual);
+                    true
+                }
+                Some(_) => {
+                    assembler.assemble(&u, Some(&mut values), &mut residual);
+                    false
+                }
+                None => false,
+            };
+            (warm, reference, clock.elapsed().as_secs_f64())
+        },
     );
-    let reference = norm(&residual);
-    let warm = match guess {
-        Some(guess) if reference > 0.0 => {
-            reduce(&assembler.constraints.target, guess, &mut x);
-            assembler.constraints.expand(&x, &mut u);
-            assembler.assemble(&u, Some(&mut values), &mut residual);
-            true
-        }
-        Some(_) => {
-            assembler.assemble(&u, Some(&mut values), &mut residual);
-            false
-        }
-        None => false,
-    };
-    timings.assembly_s += clock.elapsed().as_secs_f64();
+    timings.analyze_s = analyzed.1;
+    analyzed.0?;
+    timings.assembly_s += assembly_s;
     report.residual_history.push(if warm {
         norm(&residual) / reference
     } else {
@@ -233,6 +249,7 @@ fn run<'p>(
         // Nothing drives the field (or nothing is free): u₀ is the answer.
         report.converged = true;
         report.residual_history[0] = 0.0;
+        timings.total_s = start.elapsed().as_secs_f64();
         report.timings = timings;
         return Ok((Solution::new(assembler, u, report), values, false));
     }
@@ -241,6 +258,7 @@ fn run<'p>(
         // The start already solves this problem (a repeated sweep value).
         report.converged = true;
         report.relative_residual = current / reference;
+        timings.total_s = start.elapsed().as_secs_f64();
         report.timings = timings;
         return Ok((Solution::new(assembler, u, report), values, false));
     }
@@ -345,6 +363,7 @@ fn run<'p>(
             break;
         }
     }
+    timings.total_s = start.elapsed().as_secs_f64();
     report.timings = timings;
     // A linear problem's matrix does not depend on u, so its single
     // factorisation is the tangent at the solution; after a nonlinear step

@@ -522,6 +522,9 @@ pub struct TimingsInfo {
     pub factor: f64,
     /// All triangular solves.
     pub solve: f64,
+    /// The whole solve (less than the sum above: the analysis and the first
+    /// assembly overlap).
+    pub total: f64,
 }
 
 /// `results.probes.NAME`.
@@ -762,6 +765,7 @@ pub fn results_estimated(
                 assembly: report.timings.assembly_s,
                 factor: report.timings.factor_s,
                 solve: report.timings.solve_s,
+                total: report.timings.total_s,
             },
         },
         energy_j: solution.energy(),
