@@ -150,39 +150,20 @@ pub fn zienkiewicz_zhu(solution: &Solution) -> ErrorEstimate {
     // |B* − B_h|² is of degree 2p on a planar element; two more for the
     // radius of axisymmetric ones and some margin for the curved A/r term.
     let rule = quadrature::dunavant(2 * order.degree() + 2);
-    let per_element: Vec<(f64, f64)> = (0..n_tri)
-        .into_par_iter()
-        .map(|t| {
-            if !counted[t] {
-                return (0.0, 0.0);
-            }
-            let ul = local_values(solution, t);
-            let tri = asm.triangle(t);
-            let material = &asm.region_props(t).material;
-            let (mut err, mut norm) = (0.0, 0.0);
-            for (l, w) in rule.points.iter().zip(&rule.weights) {
-                let basis = CurlBasis::at(&tri, order, symmetry, *l);
-                let b = basis.flux_density(&ul);
-                let mut star = [0.0; 2];
-                for a in 0..n_loc {
-                    let r = recovered[slot[t * n_loc + a] as usize];
-                    star[0] += basis.value[a] * r[0];
-                    star[1] += basis.value[a] * r[1];
-                }
-                let nu = material.at(b).nu;
-                let weight = w * tri.area * basis.volume_factor * nu;
-                let d = [star[0] - b[0], star[1] - b[1]];
-                err += weight * (d[0] * d[0] + d[1] * d[1]);
-                norm += weight * (b[0] * b[0] + b[1] * b[1]);
-            }
-            (err, norm)
-        })
-        .collect();
+    let per_element = energy_weighted(solution, &rule, |t, basis| {
+        let mut star = [0.0; 2];
+        for a in 0..n_loc {
+            let r = recovered[slot[t * n_loc + a] as usize];
+            star[0] += basis.value[a] * r[0];
+            star[1] += basis.value[a] * r[1];
+        }
+        star
+    });
     // Summed in element order: the same bits whatever the threads.
     ErrorEstimate {
-        error_sq: per_element.iter().map(|e| e.0).sum(),
-        norm_sq: per_element.iter().map(|e| e.1).sum(),
-        indicators_sq: per_element.into_iter().map(|e| e.0).collect(),
+        error_sq: per_element.iter().map(|e| e.difference).sum(),
+        norm_sq: per_element.iter().map(|e| e.solution).sum(),
+        indicators_sq: per_element.into_iter().map(|e| e.difference).collect(),
     }
 }
 
@@ -194,37 +175,59 @@ pub fn relative_energy_error(
     solution: &Solution,
     exact: impl Fn(usize, [f64; 2]) -> [f64; 2] + Sync,
 ) -> f64 {
-    let asm = solution.assembler();
-    let problem = asm.problem();
-    let (order, symmetry) = (problem.order, problem.symmetry);
-    let s = problem.length_scale_m;
-    let rule = quadrature::dunavant(8);
-    let per_element: Vec<(f64, f64)> = (0..problem.mesh.triangles.len())
-        .into_par_iter()
-        .map(|t| {
-            if asm.kelvin_image(t).is_some() {
-                return (0.0, 0.0);
-            }
-            let ul = local_values(solution, t);
-            let tri = asm.triangle(t);
-            let material = &asm.region_props(t).material;
-            let (mut err, mut norm) = (0.0, 0.0);
-            for (l, w) in rule.points.iter().zip(&rule.weights) {
-                let basis = CurlBasis::at(&tri, order, symmetry, *l);
-                let b = basis.flux_density(&ul);
-                let e = exact(t, [basis.x[0] / s, basis.x[1] / s]);
-                let weight = w * tri.area * basis.volume_factor * material.at(b).nu;
-                err += weight * ((e[0] - b[0]).powi(2) + (e[1] - b[1]).powi(2));
-                norm += weight * (e[0] * e[0] + e[1] * e[1]);
-            }
-            (err, norm)
-        })
-        .collect();
-    let err: f64 = per_element.iter().map(|e| e.0).sum();
-    let norm: f64 = per_element.iter().map(|e| e.1).sum();
+    let s = solution.assembler().problem().length_scale_m;
+    let per_element = energy_weighted(solution, &quadrature::dunavant(8), |t, basis| {
+        exact(t, [basis.x[0] / s, basis.x[1] / s])
+    });
+    let err: f64 = per_element.iter().map(|e| e.difference).sum();
+    let norm: f64 = per_element.iter().map(|e| e.other).sum();
     if norm > 0.0 {
         (err / norm).sqrt()
     } else {
         0.0
     }
+}
+
+/// Energy-weighted integrals over one triangle, J: ∫ ν |C − B_h|² dV,
+/// ∫ ν |B_h|² dV and ∫ ν |C|² dV for a field C compared with B_h.
+#[derive(Clone, Copy, Default)]
+struct Weighted {
+    difference: f64,
+    solution: f64,
+    other: f64,
+}
+
+/// [`Weighted`] for every triangle of the mesh (zero on the Kelvin image),
+/// with C = `other(triangle, basis at the quadrature point)` and ν the
+/// secant reluctivity at B_h, by `rule`.
+fn energy_weighted(
+    solution: &Solution,
+    rule: &quadrature::TriangleRule,
+    other: impl Fn(usize, &CurlBasis) -> [f64; 2] + Sync,
+) -> Vec<Weighted> {
+    let asm = solution.assembler();
+    let problem = asm.problem();
+    let (order, symmetry) = (problem.order, problem.symmetry);
+    (0..problem.mesh.triangles.len())
+        .into_par_iter()
+        .map(|t| {
+            let mut sums = Weighted::default();
+            if asm.kelvin_image(t).is_some() {
+                return sums;
+            }
+            let ul = local_values(solution, t);
+            let tri = asm.triangle(t);
+            let material = &asm.region_props(t).material;
+            for (l, w) in rule.points.iter().zip(&rule.weights) {
+                let basis = CurlBasis::at(&tri, order, symmetry, *l);
+                let b = basis.flux_density(&ul);
+                let c = other(t, &basis);
+                let weight = w * tri.area * basis.volume_factor * material.at(b).nu;
+                sums.difference += weight * ((c[0] - b[0]).powi(2) + (c[1] - b[1]).powi(2));
+                sums.solution += weight * (b[0] * b[0] + b[1] * b[1]);
+                sums.other += weight * (c[0] * c[0] + c[1] * c[1]);
+            }
+            sums
+        })
+        .collect()
 }
