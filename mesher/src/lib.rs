@@ -50,7 +50,9 @@ mod validate;
 
 pub use geometry::{GeometryError, Loop, Outline, Point, Segment};
 pub use matched::MatchedPair;
-pub use mesh::{BoundaryEdge, EdgeTopology, Mesh, MeshError, QualityStats, RefinementReport};
+pub use mesh::{
+    min_angle, BoundaryEdge, EdgeTopology, Mesh, MeshError, QualityStats, RefinementReport,
+};
 pub use reconnect::{reconnect, ReconnectError, Reconnected};
 pub use triangulate::{
     mesh, mesh_disc_with_fixed_rim, mesh_with_size_hints, MeshInput, ShapeInput,

@@ -147,29 +147,9 @@ impl Mesh {
         out
     }
 
-    /// The smallest angle of triangle `t`, radians: the one opposite its
-    /// shortest edge, so one `atan2` instead of three.
+    /// The smallest angle of triangle `t`, radians (see [`min_angle`]).
     pub fn min_angle(&self, t: usize) -> f64 {
-        let p = self.triangles[t].map(|i| self.nodes[i as usize]);
-        let l2 = |k: usize| {
-            let (a, b) = (p[(k + 1) % 3], p[(k + 2) % 3]);
-            (a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2)
-        };
-        // Vertex k faces edge (k+1, k+2).
-        let (l0, l1, l2) = (l2(0), l2(1), l2(2));
-        let k = if l0 <= l1 && l0 <= l2 {
-            0
-        } else if l1 <= l2 {
-            1
-        } else {
-            2
-        };
-        let (a, b, c) = (p[k], p[(k + 1) % 3], p[(k + 2) % 3]);
-        let u = [b[0] - a[0], b[1] - a[1]];
-        let v = [c[0] - a[0], c[1] - a[1]];
-        (u[0] * v[1] - u[1] * v[0])
-            .abs()
-            .atan2(u[0] * v[0] + u[1] * v[1])
+        min_angle(self.triangles[t].map(|i| self.nodes[i as usize]))
     }
 
     /// Total area of the triangles of each region: `(region, area)` pairs
@@ -343,6 +323,30 @@ impl Mesh {
         }
         Ok(())
     }
+}
+
+/// The smallest angle of the triangle with corners `p`, radians: the one
+/// opposite its shortest edge, so one `atan2` instead of three.
+pub fn min_angle(p: [Point; 3]) -> f64 {
+    let l2 = |k: usize| {
+        let (a, b) = (p[(k + 1) % 3], p[(k + 2) % 3]);
+        (a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2)
+    };
+    // Vertex k faces edge (k+1, k+2).
+    let (l0, l1, l2) = (l2(0), l2(1), l2(2));
+    let k = if l0 <= l1 && l0 <= l2 {
+        0
+    } else if l1 <= l2 {
+        1
+    } else {
+        2
+    };
+    let (a, b, c) = (p[k], p[(k + 1) % 3], p[(k + 2) % 3]);
+    let u = [b[0] - a[0], b[1] - a[1]];
+    let v = [c[0] - a[0], c[1] - a[1]];
+    (u[0] * v[1] - u[1] * v[0])
+        .abs()
+        .atan2(u[0] * v[0] + u[1] * v[1])
 }
 
 #[cfg(test)]

@@ -384,7 +384,7 @@ fn reconnected(model: &Model, sweep: &Sweep, base: &Base, value: f64) -> Option<
         let mut more = false;
         for (t, tri) in r.triangles.iter().enumerate() {
             let p = tri.map(|v| nodes[v as usize]);
-            if !r.band[t] || (area2(p) > 0.0 && min_angle(angles(p)) >= blend.floor) {
+            if !r.band[t] || (area2(p) > 0.0 && min_angle_deg(p) >= blend.floor) {
                 continue;
             }
             let len = |k: usize| {
@@ -672,7 +672,7 @@ impl Blend {
         let changed: Vec<usize> = (0..nt).filter(|&t| moves(t)).collect();
         let band: Vec<bool> = (0..nt).map(|t| deforming(t) && moves(t)).collect();
         let base_angles: Vec<f64> = (0..nt)
-            .map(|t| min_angle(angles(triangles[t].map(|v| mesh.nodes[v as usize]))))
+            .map(|t| min_angle_deg(triangles[t].map(|v| mesh.nodes[v as usize])))
             .collect();
         let floor = floor.unwrap_or_else(|| {
             let smallest = (0..nt)
@@ -728,28 +728,14 @@ impl Blend {
         };
         self.changed.iter().all(|&t| {
             let p = base.triangles[t].map(|v| moved.nodes[v as usize]);
-            area2(p) > 0.0 && min_angle(angles(p)) >= BLEND_ANGLE_FRACTION * self.base_angles[t]
+            area2(p) > 0.0 && min_angle_deg(p) >= BLEND_ANGLE_FRACTION * self.base_angles[t]
         })
     }
 }
 
-fn min_angle(a: [f64; 3]) -> f64 {
-    a[0].min(a[1]).min(a[2])
-}
-
-/// Interior angles of a triangle, degrees.
-fn angles(p: [Point; 3]) -> [f64; 3] {
-    let mut out = [0.0; 3];
-    for (k, angle) in out.iter_mut().enumerate() {
-        let (a, b, c) = (p[k], p[(k + 1) % 3], p[(k + 2) % 3]);
-        let u = [b[0] - a[0], b[1] - a[1]];
-        let v = [c[0] - a[0], c[1] - a[1]];
-        *angle = (u[0] * v[1] - u[1] * v[0])
-            .abs()
-            .atan2(u[0] * v[0] + u[1] * v[1])
-            .to_degrees();
-    }
-    out
+/// The smallest interior angle of a triangle, degrees.
+fn min_angle_deg(p: [Point; 3]) -> f64 {
+    fluxwright_mesher::min_angle(p).to_degrees()
 }
 
 /// The weight w with w = 1 on nodes of role 1, 0 on role 2, and P1-harmonic

@@ -716,3 +716,28 @@ direction = -1
     }
     assert_eq!(m.warnings.len(), expect.len(), "{:#?}", m.warnings);
 }
+
+#[test]
+fn the_triangle_limit_follows_the_memory_per_element() {
+    // About 1e7 triangles: a 1 m square at 0.5 mm mesh size gives
+    // 1e6 mm² / (√3/4 · 0.25 mm²) ≈ 9.2e6 in the plate. With P1 elements
+    // (about 630 B a triangle, ~6 GB) that is within the default limit; with
+    // P2 (about 2.5 kB, ~23 GB) it is not. The estimate is the model
+    // reader's own, checked before any mesh exists.
+    let model = |order: u8| {
+        format!(
+            "[model]\nlength_unit = \"mm\"\nelement_order = {order}\n\n[mesh]\nmax_size = 50\n\n\
+             [[shape]]\nname = \"plate\"\nrectangle = {{ min = [0, 0], max = [1000, 1000] }}\nmesh_size = 0.5\n\n\
+             [outer]\nshape = {{ rectangle = {{ min = [-100, -100], max = [1100, 1100] }} }}\ncondition = \"zero-potential\"\n"
+        )
+    };
+    if let Err(e) = Model::from_toml_str(&model(1), &ModelSource::new(FILE)) {
+        panic!("the P1 model is within the limit: {e}");
+    }
+    check(
+        &model(2),
+        ErrorKind::OutOfRange,
+        None,
+        &["triangles (limit 5040000)", "GB of memory", "shape `plate`"],
+    );
+}

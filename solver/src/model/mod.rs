@@ -152,7 +152,8 @@ pub struct Model {
 /// 0.2 % keeps the area of a circle within about 0.13 % (common practice, no
 /// source).
 pub const DEFAULT_CHORD_FRACTION: f64 = 0.002;
-/// Largest mesh the model may ask for by default.
+/// Largest mesh a P1 model may ask for (P2 models: the count with the same
+/// memory estimate, about a quarter).
 pub const DEFAULT_MAX_TRIANGLES: usize = 20_000_000;
 
 impl Model {

@@ -190,7 +190,7 @@ fn resolve(ctx: &mut Ctx<'_>, raw: RawModel, source: &ModelSource) -> Option<Mod
         adapt: raw.mesh.adapt.unwrap_or(0),
         target_error: raw.mesh.target_error.unwrap_or(0.005),
         chord_fraction: DEFAULT_CHORD_FRACTION,
-        max_triangles: DEFAULT_MAX_TRIANGLES,
+        max_triangles: default_max_triangles(header.element_order),
     };
     for s in shapes.iter_mut().filter(|s| s.mesh_size.is_nan()) {
         s.mesh_size = mesh.max_size;
@@ -664,6 +664,15 @@ fn solve_bytes_per_triangle(element_order: u8) -> f64 {
     } else {
         630.0
     }
+}
+
+/// The triangle limit of a model with this element order: the default
+/// limit for P1 elements, and for P2 the count whose memory estimate is the
+/// same (about 12.6 GB), so that a P2 model cannot ask for four times the
+/// memory a P1 model may.
+fn default_max_triangles(element_order: u8) -> usize {
+    let budget = DEFAULT_MAX_TRIANGLES as f64 * solve_bytes_per_triangle(1);
+    (budget / solve_bytes_per_triangle(element_order)) as usize
 }
 
 /// `bytes` as a short figure with a decimal unit (kB ... PB).
