@@ -440,9 +440,9 @@ mod tests {
         assert_eq!(expected.len(), 12 + 12 - 1);
         assert_eq!(topo.edges, expected);
         for (t, te) in topo.triangle_edges.iter().enumerate() {
-            for k in 0..3 {
+            for (k, &e) in te.iter().enumerate() {
                 let (a, b) = (m.triangles[t][k], m.triangles[t][(k + 1) % 3]);
-                assert_eq!(topo.edges[te[k] as usize], [a.min(b), a.max(b)]);
+                assert_eq!(topo.edges[e as usize], [a.min(b), a.max(b)]);
             }
         }
     }
