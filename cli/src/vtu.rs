@@ -150,20 +150,23 @@ impl<W: Write> Base64<W> {
     fn encode(&mut self, bytes: &[u8]) -> io::Result<()> {
         const ALPHABET: &[u8; 64] =
             b"ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
+        let groups = bytes.chunks_exact(3);
+        let tail = groups.remainder();
         self.encoded.clear();
-        for chunk in bytes.chunks(3) {
-            let b = [
-                chunk[0],
-                *chunk.get(1).unwrap_or(&0),
-                *chunk.get(2).unwrap_or(&0),
-            ];
-            let n = ((b[0] as u32) << 16) | ((b[1] as u32) << 8) | b[2] as u32;
-            for (k, shift) in [18, 12, 6, 0].into_iter().enumerate() {
-                self.encoded.push(if k <= chunk.len() {
-                    ALPHABET[((n >> shift) & 63) as usize]
-                } else {
-                    b'='
-                });
+        self.encoded.resize(bytes.len().div_ceil(3) * 4, b'=');
+        for (g, out) in groups.zip(self.encoded.chunks_exact_mut(4)) {
+            let n = (u32::from(g[0]) << 16) | (u32::from(g[1]) << 8) | u32::from(g[2]);
+            for (o, shift) in out.iter_mut().zip([18, 12, 6, 0]) {
+                *o = ALPHABET[((n >> shift) & 63) as usize];
+            }
+        }
+        if !tail.is_empty() {
+            // One or two bytes left: two or three characters, then '='.
+            let n = (u32::from(tail[0]) << 16) | (u32::from(*tail.get(1).unwrap_or(&0)) << 8);
+            let end = self.encoded.len();
+            let last = &mut self.encoded[end - 4..];
+            for (o, shift) in last.iter_mut().zip([18, 12, 6]).take(tail.len() + 1) {
+                *o = ALPHABET[((n >> shift) & 63) as usize];
             }
         }
         self.out.write_all(&self.encoded)
@@ -178,7 +181,8 @@ impl<W: Write> Write for Base64<W> {
             let block = std::mem::take(&mut self.pending);
             self.encode(&block[..full])?;
             self.pending = block;
-            self.pending.drain(..full);
+            self.pending.copy_within(full.., 0);
+            self.pending.truncate(self.pending.len() - full);
         }
         Ok(buf.len())
     }
