@@ -48,6 +48,177 @@ pub(crate) fn point_at(s: &Segment, t: f64) -> Point {
     }
 }
 
+/// The number of pieces an arc of its own asks for, by chord error and by
+/// its owner's size.
+fn arc_piece_count(s: &Segment, chord_fraction: f64, own_size: f64) -> usize {
+    match *s {
+        Segment::Line { .. } => (s.length() / own_size).ceil().max(1.0) as usize,
+        Segment::Arc { sweep, .. } => {
+            arc_pieces(sweep, chord_fraction).max((s.length() / own_size).ceil() as usize)
+        }
+    }
+}
+
+/// Circles that carry arcs of more than one outline (a magnet sitting on a
+/// rotor, a coil former on a core): split independently, two coincident
+/// arcs give chords that cross by their sagitta and leave slivers between
+/// them. On such a circle every arc end cuts the circle into elementary
+/// intervals; each interval is split evenly into the pieces the finest arc
+/// covering it asks for, and every arc covering it takes those same points.
+pub(crate) struct SharedCircles {
+    circles: Vec<SharedCircle>,
+}
+
+struct SharedCircle {
+    center: Point,
+    radius: f64,
+    /// Arc ends, angles in [0, 2π), sorted and distinct.
+    ends: Vec<f64>,
+    /// Per elementary interval `ends[i] → ends[i + 1]` (the last one wraps
+    /// round): its number of pieces.
+    pieces: Vec<usize>,
+}
+
+/// Angles closer than this (radians) are one arc end.
+const SAME_ANGLE: f64 = 1e-9;
+
+impl SharedCircles {
+    fn find(owned: &[(&Outline, u32, f64)], chord_fraction: f64) -> SharedCircles {
+        use std::f64::consts::TAU;
+        // (center, radius, owners, arcs as (start, length, piece angle)).
+        type Arcs = Vec<(f64, f64, f64)>;
+        let mut found: Vec<(Point, f64, Vec<u32>, Arcs)> = Vec::new();
+        for &(outline, owner, size) in owned {
+            for s in outline.loops.iter().flat_map(|l| &l.segments) {
+                let Segment::Arc {
+                    center,
+                    radius,
+                    start,
+                    sweep,
+                } = *s
+                else {
+                    continue;
+                };
+                let tol = 1e-9 * (radius + center[0].abs() + center[1].abs());
+                let piece = sweep.abs() / arc_piece_count(s, chord_fraction, size) as f64;
+                // Kept counter-clockwise: from the lower end.
+                let from = if sweep >= 0.0 { start } else { start + sweep };
+                let arc = (from.rem_euclid(TAU), sweep.abs().min(TAU), piece);
+                match found.iter_mut().find(|c| {
+                    (c.0[0] - center[0]).abs() <= tol
+                        && (c.0[1] - center[1]).abs() <= tol
+                        && (c.1 - radius).abs() <= tol
+                }) {
+                    Some(c) => {
+                        if !c.2.contains(&owner) {
+                            c.2.push(owner);
+                        }
+                        c.3.push(arc);
+                    }
+                    None => found.push((center, radius, vec![owner], vec![arc])),
+                }
+            }
+        }
+        let circles = found
+            .into_iter()
+            .filter(|c| c.2.len() > 1)
+            .map(|(center, radius, _, arcs)| {
+                let mut ends: Vec<f64> = arcs
+                    .iter()
+                    .flat_map(|a| [a.0, (a.0 + a.1).rem_euclid(TAU)])
+                    .collect();
+                ends.sort_by(f64::total_cmp);
+                ends.dedup_by(|b, a| *b - *a < SAME_ANGLE);
+                if ends.len() > 1 && ends[0] + TAU - ends[ends.len() - 1] < SAME_ANGLE {
+                    ends.pop();
+                }
+                let pieces = (0..ends.len())
+                    .map(|i| {
+                        let (a, len) = interval(&ends, i);
+                        let mid = a + 0.5 * len;
+                        let finest = arcs
+                            .iter()
+                            .filter(|arc| (mid - arc.0).rem_euclid(TAU) < arc.1)
+                            .map(|arc| arc.2)
+                            .fold(f64::INFINITY, f64::min);
+                        (len / finest).ceil().max(1.0) as usize
+                    })
+                    .collect();
+                SharedCircle {
+                    center,
+                    radius,
+                    ends,
+                    pieces,
+                }
+            })
+            .collect();
+        SharedCircles { circles }
+    }
+
+    /// The parameters (0 first, 1 excluded) at which arc `s` is split, when
+    /// it lies on a shared circle.
+    fn params(&self, s: &Segment) -> Option<Vec<f64>> {
+        use std::f64::consts::TAU;
+        let Segment::Arc {
+            center,
+            radius,
+            start,
+            sweep,
+        } = *s
+        else {
+            return None;
+        };
+        let tol = 1e-9 * (radius + center[0].abs() + center[1].abs());
+        let c = self.circles.iter().find(|c| {
+            (c.center[0] - center[0]).abs() <= tol
+                && (c.center[1] - center[1]).abs() <= tol
+                && (c.radius - radius).abs() <= tol
+        })?;
+        let n = c.ends.len();
+        let near = |x: f64| {
+            (0..n).find(|&i| {
+                let d = (x - c.ends[i]).rem_euclid(TAU);
+                d < SAME_ANGLE || TAU - d < SAME_ANGLE
+            })
+        };
+        let mut first = near(start.rem_euclid(TAU))?;
+        let length = sweep.abs().min(TAU);
+        // Angles along the arc, from its start, as distances in its direction.
+        let mut distances = Vec::new();
+        let mut covered = 0.0;
+        while covered < length - SAME_ANGLE {
+            // The interval next to `first` in the arc's direction.
+            let i = if sweep >= 0.0 {
+                first
+            } else {
+                (first + n - 1) % n
+            };
+            let (_, len) = interval(&c.ends, i);
+            let p = c.pieces[i];
+            for k in 0..p {
+                distances.push(covered + len * k as f64 / p as f64);
+            }
+            covered += len;
+            first = if sweep >= 0.0 { (first + 1) % n } else { i };
+            if distances.len() > 100_000_000 {
+                return None; // cannot happen for a valid circle; stay finite
+            }
+        }
+        Some(distances.into_iter().map(|d| d / length).collect())
+    }
+}
+
+/// Start angle and length of elementary interval `i` of sorted `ends`.
+fn interval(ends: &[f64], i: usize) -> (f64, f64) {
+    let a = ends[i];
+    let b = if i + 1 < ends.len() {
+        ends[i + 1]
+    } else {
+        ends[0] + std::f64::consts::TAU
+    };
+    (a, b - a)
+}
+
 /// One input segment (line or arc) of some outline.
 #[derive(Clone, Copy, Debug)]
 pub(crate) struct SegInfo {
@@ -140,14 +311,29 @@ impl Domain {
             vertex_caps: None,
             fixed_boundary: false,
         };
-        domain.add_outline(outer, OUTER_OWNER, max_size, chord_fraction);
-        for (i, (outline, size)) in shapes.iter().enumerate() {
-            domain.add_outline(outline, i as u32, size.min(max_size), chord_fraction);
+        let owned: Vec<(&Outline, u32, f64)> = std::iter::once((outer, OUTER_OWNER, max_size))
+            .chain(
+                shapes
+                    .iter()
+                    .enumerate()
+                    .map(|(i, (o, size))| (*o, i as u32, size.min(max_size))),
+            )
+            .collect();
+        let shared = SharedCircles::find(&owned, chord_fraction);
+        for (outline, owner, size) in owned {
+            domain.add_outline(outline, owner, size, chord_fraction, &shared);
         }
         domain
     }
 
-    fn add_outline(&mut self, outline: &Outline, owner: u32, own_size: f64, chord_fraction: f64) {
+    fn add_outline(
+        &mut self,
+        outline: &Outline,
+        owner: u32,
+        own_size: f64,
+        chord_fraction: f64,
+        shared: &SharedCircles,
+    ) {
         let mut local = 0u32;
         for l in &outline.loops {
             let first = self.segs.len() as u32;
@@ -164,11 +350,15 @@ impl Domain {
                     next: first + (k as u32 + 1) % n,
                 });
                 local += 1;
-                let pieces = match *s {
-                    Segment::Line { .. } => (s.length() / own_size).ceil().max(1.0) as usize,
-                    Segment::Arc { sweep, .. } => arc_pieces(sweep, chord_fraction)
-                        .max((s.length() / own_size).ceil() as usize),
-                };
+                if let Some(params) = shared.params(s) {
+                    for t in params {
+                        points.push(point_at(s, t));
+                        seg.push(g);
+                        param.push(t);
+                    }
+                    continue;
+                }
+                let pieces = arc_piece_count(s, chord_fraction, own_size);
                 for j in 0..pieces {
                     let t = j as f64 / pieces as f64;
                     points.push(point_at(s, t));

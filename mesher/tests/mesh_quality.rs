@@ -683,3 +683,53 @@ fn arcs_on_one_circle_finish_with_a_valid_mesh() {
         area(1)
     );
 }
+
+/// A magnet sector sitting on a rotor disc (their arcs on one circle, with
+/// different mesh sizes), and a sector of a sleeve whose outer arc lies on
+/// the outer circle: coincident arcs are split at the same points, so the
+/// mesh has no slivers where they meet (independent splits made chords that
+/// crossed by their sagitta: 0.3° triangles before this was handled), and
+/// the areas are the exact geometry's within the chord bound.
+#[test]
+fn arcs_on_a_shared_circle_mesh_without_slivers() {
+    let rotor = Outline::circle([0.0, 0.0], 20.0).unwrap();
+    let magnet = Outline::sector([0.0, 0.0], 20.0, 24.0, 10.0, 50.0).unwrap();
+    let sleeve = Outline::sector([0.0, 0.0], 55.0, 60.0, 200.0, 250.0).unwrap();
+    let outer = Outline::circle([0.0, 0.0], 60.0).unwrap();
+    let cf = 1e-3;
+    let m = mesh(&input(
+        outer,
+        4.0,
+        vec![shape(rotor, 2.0), shape(magnet, 0.7), shape(sleeve, 1.0)],
+    ))
+    .unwrap();
+    assert!(m.report.complete);
+    // The shapes' own corners are right angles; nothing should fall below
+    // the target anywhere.
+    let worst = (0..m.triangles.len())
+        .map(|t| min_angle(&m, t))
+        .fold(f64::INFINITY, f64::min);
+    assert!(worst >= TARGET - 1e-9, "smallest angle {worst:.2}°");
+    let sector = |r0: f64, r1: f64, deg: f64| 0.5 * (r1 * r1 - r0 * r0) * deg.to_radians();
+    let rad = |d: f64| d.to_radians();
+    for (region, exact, arcs) in [
+        (
+            1,
+            sector(20.0, 24.0, 40.0),
+            vec![(20.0, rad(40.0)), (24.0, rad(40.0))],
+        ),
+        (
+            2,
+            sector(55.0, 60.0, 50.0),
+            vec![(55.0, rad(50.0)), (60.0, rad(50.0))],
+        ),
+        // The rotor loses nothing to the magnet drawn after it (they only touch).
+        (0, PI * 20.0 * 20.0, vec![(20.0, 2.0 * PI)]),
+    ] {
+        let got = area_of(&m, region);
+        assert!(
+            (got - exact).abs() <= chord_bound(cf, &arcs),
+            "region {region}: area {got} against {exact}"
+        );
+    }
+}
