@@ -65,6 +65,7 @@ fn arc_piece_count(s: &Segment, chord_fraction: f64, own_size: f64) -> usize {
 /// them. On such a circle every arc end cuts the circle into elementary
 /// intervals; each interval is split evenly into the pieces the finest arc
 /// covering it asks for, and every arc covering it takes those same points.
+#[derive(Default)]
 pub(crate) struct SharedCircles {
     circles: Vec<SharedCircle>,
 }
@@ -155,25 +156,40 @@ impl SharedCircles {
         SharedCircles { circles }
     }
 
+    /// The shared circle arc `s` lies on, if any.
+    fn circle_of(&self, s: &Segment) -> Option<usize> {
+        let Segment::Arc { center, radius, .. } = *s else {
+            return None;
+        };
+        let tol = 1e-9 * (radius + center[0].abs() + center[1].abs());
+        self.circles.iter().position(|c| {
+            (c.center[0] - center[0]).abs() <= tol
+                && (c.center[1] - center[1]).abs() <= tol
+                && (c.radius - radius).abs() <= tol
+        })
+    }
+
+    /// A key for the piece of shared circle `circle` between points `a`
+    /// and `b` (either order): coincident pieces of different outlines get
+    /// the same key.
+    fn piece_key(&self, circle: usize, a: Point, b: Point) -> (usize, i64, i64) {
+        let c = &self.circles[circle];
+        let angle = |p: Point| {
+            let t = (p[1] - c.center[1]).atan2(p[0] - c.center[0]);
+            (t.rem_euclid(std::f64::consts::TAU) / 1e-8).round() as i64
+        };
+        let (x, y) = (angle(a), angle(b));
+        (circle, x.min(y), x.max(y))
+    }
+
     /// The parameters (0 first, 1 excluded) at which arc `s` is split, when
     /// it lies on a shared circle.
     fn params(&self, s: &Segment) -> Option<Vec<f64>> {
         use std::f64::consts::TAU;
-        let Segment::Arc {
-            center,
-            radius,
-            start,
-            sweep,
-        } = *s
-        else {
+        let Segment::Arc { start, sweep, .. } = *s else {
             return None;
         };
-        let tol = 1e-9 * (radius + center[0].abs() + center[1].abs());
-        let c = self.circles.iter().find(|c| {
-            (c.center[0] - center[0]).abs() <= tol
-                && (c.center[1] - center[1]).abs() <= tol
-                && (c.radius - radius).abs() <= tol
-        })?;
+        let c = &self.circles[self.circle_of(s)?];
         let n = c.ends.len();
         let near = |x: f64| {
             (0..n).find(|&i| {
@@ -243,6 +259,8 @@ pub(crate) struct Domain {
     pub vertex_caps: Option<Vec<Vec<f64>>>,
     /// Input edges may not be split (fixed rim).
     pub fixed_boundary: bool,
+    /// Circles carrying arcs of more than one outline.
+    pub shared: SharedCircles,
 }
 
 impl PolyLoop {
@@ -310,6 +328,7 @@ impl Domain {
             growth,
             vertex_caps: None,
             fixed_boundary: false,
+            shared: SharedCircles::default(),
         };
         let owned: Vec<(&Outline, u32, f64)> = std::iter::once((outer, OUTER_OWNER, max_size))
             .chain(
@@ -323,6 +342,7 @@ impl Domain {
         for (outline, owner, size) in owned {
             domain.add_outline(outline, owner, size, chord_fraction, &shared);
         }
+        domain.shared = shared;
         domain
     }
 
@@ -422,9 +442,38 @@ impl Domain {
             if self.fixed_boundary {
                 return Ok(caps);
             }
+            // Pieces each loop edge asks for (1: keep it). A piece of a
+            // shared circle takes the most any outline asks for it, so
+            // that coincident arcs stay split at the same points.
+            let mut wanted: Vec<Vec<usize>> = Vec::with_capacity(caps.len());
+            let mut on_shared: std::collections::HashMap<(usize, i64, i64), usize> =
+                std::collections::HashMap::new();
+            for (l, cap) in self.loops.iter().zip(&caps) {
+                let n = l.points.len();
+                let mut w = vec![1; n];
+                for (i, wi) in w.iter_mut().enumerate() {
+                    let j = (i + 1) % n;
+                    let Some(curve) = self.curves[l.seg[i] as usize] else {
+                        continue;
+                    };
+                    let feature = ELEMENTS_ACROSS_FEATURE * cap[i].min(cap[j]);
+                    let (a, b) = (l.points[i], l.points[j]);
+                    let len = (b[0] - a[0]).hypot(b[1] - a[1]);
+                    if feature.is_finite() && len > 1.5 * feature {
+                        // At most 8 pieces a round: thin spots are refined
+                        // progressively instead of the whole edge at once.
+                        *wi = ((len / feature).ceil() as usize).min(8);
+                    }
+                    if let Some(c) = self.shared.circle_of(&curve) {
+                        let most = on_shared.entry(self.shared.piece_key(c, a, b)).or_insert(1);
+                        *most = (*most).max(*wi);
+                    }
+                }
+                wanted.push(w);
+            }
             let mut changed = false;
             let mut known = Vec::with_capacity(caps.len());
-            for (l, cap) in self.loops.iter_mut().zip(&caps) {
+            for ((l, cap), w) in self.loops.iter_mut().zip(&caps).zip(&wanted) {
                 let n = l.points.len();
                 let (mut points, mut seg, mut param) = (Vec::new(), Vec::new(), Vec::new());
                 let mut old = Vec::new();
@@ -434,25 +483,19 @@ impl Domain {
                     param.push(l.param[i]);
                     old.push(cap[i]);
                     let j = (i + 1) % n;
-                    let feature = ELEMENTS_ACROSS_FEATURE * cap[i].min(cap[j]);
-                    let a = l.points[i];
-                    let b = l.points[j];
-                    let len = (b[0] - a[0]).hypot(b[1] - a[1]);
                     let Some(curve) = self.curves[l.seg[i] as usize] else {
                         continue;
                     };
-                    if !(feature.is_finite() && len > 1.5 * feature) {
-                        continue;
-                    }
+                    let pieces = match self.shared.circle_of(&curve) {
+                        Some(c) => on_shared[&self.shared.piece_key(c, l.points[i], l.points[j])],
+                        None => w[i],
+                    };
                     let t0 = l.param[i];
                     let t1 = if l.seg[j] == l.seg[i] && l.param[j] > t0 {
                         l.param[j]
                     } else {
                         1.0
                     };
-                    // At most 8 pieces a round: thin spots are refined
-                    // progressively instead of the whole edge at once.
-                    let pieces = ((len / feature).ceil() as usize).min(8);
                     for q in 1..pieces {
                         let t = t0 + (t1 - t0) * q as f64 / pieces as f64;
                         points.push(point_at(&curve, t));

@@ -285,6 +285,7 @@ pub fn mesh_disc_with_fixed_rim(
         growth,
         vertex_caps: Some(vec![caps]),
         fixed_boundary: true,
+        shared: Default::default(),
     };
     // Rough guard on the count, as in `mesh`.
     let area = std::f64::consts::PI * radius * radius;
