@@ -100,16 +100,14 @@ impl SharedCircles {
                 else {
                     continue;
                 };
-                let tol = 1e-9 * (radius + center[0].abs() + center[1].abs());
                 let piece = sweep.abs() / arc_piece_count(s, chord_fraction, size) as f64;
                 // Kept counter-clockwise: from the lower end.
                 let from = if sweep >= 0.0 { start } else { start + sweep };
                 let arc = (from.rem_euclid(TAU), sweep.abs().min(TAU), piece);
-                match found.iter_mut().find(|c| {
-                    (c.0[0] - center[0]).abs() <= tol
-                        && (c.0[1] - center[1]).abs() <= tol
-                        && (c.1 - radius).abs() <= tol
-                }) {
+                match found
+                    .iter_mut()
+                    .find(|c| same_circle((c.0, c.1), (center, radius)))
+                {
                     Some(c) => {
                         if !c.2.contains(&owner) {
                             c.2.push(owner);
@@ -161,12 +159,9 @@ impl SharedCircles {
         let Segment::Arc { center, radius, .. } = *s else {
             return None;
         };
-        let tol = 1e-9 * (radius + center[0].abs() + center[1].abs());
-        self.circles.iter().position(|c| {
-            (c.center[0] - center[0]).abs() <= tol
-                && (c.center[1] - center[1]).abs() <= tol
-                && (c.radius - radius).abs() <= tol
-        })
+        self.circles
+            .iter()
+            .position(|c| same_circle((c.center, c.radius), (center, radius)))
     }
 
     /// A key for the piece of shared circle `circle` between points `a`
@@ -222,6 +217,12 @@ impl SharedCircles {
         }
         Some(distances.into_iter().map(|d| d / length).collect())
     }
+}
+
+/// Whether two circles (center, radius) are one, to rounding.
+fn same_circle(a: (Point, f64), b: (Point, f64)) -> bool {
+    let tol = 1e-9 * (b.1 + b.0[0].abs() + b.0[1].abs());
+    (a.0[0] - b.0[0]).abs() <= tol && (a.0[1] - b.0[1]).abs() <= tol && (a.1 - b.1).abs() <= tol
 }
 
 /// Start angle and length of elementary interval `i` of sorted `ends`.
