@@ -33,6 +33,9 @@ use fluxwright_solver::assembly::Assembler;
 use fluxwright_solver::linear::{FaerCholesky, FillOrdering, Par, SpdSolver};
 #[path = "common/choke.rs"]
 mod choke;
+#[path = "common/stats.rs"]
+mod stats;
+use stats::median;
 
 use choke::choke_toml;
 use fluxwright_solver::model::{Model, ModelSource};
@@ -178,16 +181,6 @@ fn child(order: u8, target: usize) {
     println!("{}", Value::Object(out));
 }
 
-fn median(mut v: Vec<f64>) -> f64 {
-    v.sort_by(f64::total_cmp);
-    let n = v.len();
-    if n % 2 == 1 {
-        v[n / 2]
-    } else {
-        0.5 * (v[n / 2 - 1] + v[n / 2])
-    }
-}
-
 /// Least squares fit of ln t = ln a + b ln n: (a, b).
 fn power_law(points: &[(f64, f64)]) -> (f64, f64) {
     let k = points.len() as f64;
@@ -249,8 +242,8 @@ fn main() {
             }
             let mut row = BTreeMap::new();
             for key in runs[0].keys() {
-                let v: Vec<f64> = runs.iter().filter_map(|r| r[key].as_f64()).collect();
-                row.insert(key.clone(), median(v));
+                let mut v: Vec<f64> = runs.iter().filter_map(|r| r[key].as_f64()).collect();
+                row.insert(key.clone(), median(&mut v));
             }
             eprintln!("P{order} {target}: {row:?}");
             rows.entry(order).or_default().push(row);

@@ -30,6 +30,9 @@
 
 #[path = "common/choke.rs"]
 mod choke;
+#[path = "common/stats.rs"]
+mod stats;
+use stats::median;
 
 use choke::choke_toml;
 use fluxwright_solver::model::{Model, ModelSource};
@@ -93,16 +96,6 @@ fn digest(steps: &[sweep::SweepStep]) -> u64 {
         }
     }
     h
-}
-
-fn median(v: &mut [f64]) -> f64 {
-    v.sort_by(f64::total_cmp);
-    let n = v.len();
-    if n % 2 == 1 {
-        v[n / 2]
-    } else {
-        0.5 * (v[n / 2 - 1] + v[n / 2])
-    }
 }
 
 fn env<T: std::str::FromStr>(name: &str, default: T) -> T {
