@@ -197,7 +197,11 @@ impl SharedCircles {
         // Angles along the arc, from its start, as distances in its direction.
         let mut distances = Vec::new();
         let mut covered = 0.0;
-        while covered < length - SAME_ANGLE {
+        // An arc spans at most all n intervals (its ends are among `ends`).
+        for _ in 0..n {
+            if covered >= length - SAME_ANGLE {
+                break;
+            }
             // The interval next to `first` in the arc's direction.
             let i = if sweep >= 0.0 {
                 first
@@ -211,9 +215,6 @@ impl SharedCircles {
             }
             covered += len;
             first = if sweep >= 0.0 { (first + 1) % n } else { i };
-            if distances.len() > 100_000_000 {
-                return None; // cannot happen for a valid circle; stay finite
-            }
         }
         Some(distances.into_iter().map(|d| d / length).collect())
     }
